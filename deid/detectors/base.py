@@ -30,3 +30,34 @@ class Detector(Protocol):
     def detect(self, note: Note, nlp: NlpArtifacts) -> Sequence[Span]:
         """Return candidate spans for ``note``; ``nlp.tokens`` is the spaCy Doc of ``note.text``."""
         ...
+
+
+class Suppressor(Protocol):
+    """Vetoes candidate spans that are clinical content, not identifiers.
+
+    Suppressors run after overlap resolution. They never veto a span whose
+    source is a roster or a label-value field (see :mod:`deid.detectors.resolve`).
+
+    Attributes:
+        name: Registered, versioned name (``eponyms.v1``).
+    """
+
+    name: str
+
+    def suppresses(self, note: Note, span: Span) -> bool:
+        """True when ``span`` in ``note`` is clinical content that must stay."""
+        ...
+
+
+def source_name(recognizer: str, detail: str | None = None) -> str:
+    """The ``Span.source`` string: ``"regex.v1/phone_nanp"`` or just ``"spacy_ner.v1"``.
+
+    The part before the slash is the registered detector name, which the
+    precedence table and the report's per-detector breakdown use.
+    """
+    return f"{recognizer}/{detail}" if detail else recognizer
+
+
+def detector_of(source: str) -> str:
+    """The registered detector name inside a ``Span.source`` (text before any slash)."""
+    return source.split("/", 1)[0]
