@@ -9,7 +9,7 @@ Outputs: ``gold.jsonl`` (note_id, patient_id, note_date, text, spans),
 ``notes.jsonl`` (without spans), ``manifest.csv`` and a BRAT standoff export of
 the first 20 notes (by note id) in ``brat/<note_id>.txt`` + ``.ann``.
 
-Run:  PYTHONPATH=/work/main python dev_corpus/build.py [--strict]
+Run:  PYTHONPATH=/work/main python tests/corpora/dev/build.py [--strict]
 """
 
 from __future__ import annotations
@@ -32,7 +32,7 @@ def _load(name: str, path: Path):  # noqa: ANN202 - module object
     return module
 
 
-demo_build = _load("chartveil_demo_build", HERE.parent / "demo_notes" / "build.py")
+demo_build = _load("chartveil_demo_build", HERE.parents[2] / "demo_notes" / "build.py")
 generate = _load("chartveil_dev_generate", HERE / "generate.py")
 
 
