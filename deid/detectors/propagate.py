@@ -1,0 +1,169 @@
+"""Propagation: once an identifier is found anywhere in a note, find every other mention of it.
+
+Detectors see each mention on its own: "Dr. Harold Quimby" is easy, a bare
+"Quimby's" three paragraphs later is not. This stage takes the spans already
+found (and, through ``extra_values``, values found in the same patient's
+earlier notes) and searches the note once more for every value and for the
+pieces a clinician reuses: a name's single words, its reversed form
+("Quimby, Harold"), "H. Quimby", dotted initials ("H.Q."); an ID written with
+other separators or without leading zeros. All of it goes into one compiled
+alternation per note, so the cost is one regex pass.
+
+Dates are never propagated (a date value recurs as an unrelated date), nor are
+words shorter than two letters, stop words or everyday words. A name word that
+is also an everyday word ("Grant") is matched only capitalised or in capitals.
+"""
+
+from __future__ import annotations
+
+import bisect
+import re
+from collections.abc import Iterable, Sequence
+
+from deid.detectors.base import source_name
+from deid.detectors.name_lists import is_common_word, is_english_word, is_first_name, is_last_name
+from deid.detectors.names import default_triggers
+from deid.model import Note, Span
+
+NAME = "propagate.v1"
+#: Labels whose values are not propagated: dates and ages recur by chance; states,
+#: countries and professions are kept or too general.
+SKIP_LABELS = frozenset({"DATE", "AGE", "STATE", "COUNTRY", "PROFESSION"})
+ID_LABELS = frozenset(
+    {"MRN", "SSN", "PHONE", "FAX", "ACCOUNT", "HEALTH_PLAN", "LICENSE", "VEHICLE", "DEVICE", "ID_OTHER"}
+)
+_SEP = r"[\s\-./]?"
+
+#: One search entry: (regex, case-sensitive?, label, score, sort key).
+Entry = tuple[str, bool, str, float, int]
+
+
+def flex_pattern(value: str) -> str:
+    """Regex for ``value`` that tolerates other blanks, curly apostrophes and hyphen-or-space."""
+    out: list[str] = []
+    for ch in value:
+        if ch.isspace():
+            if not out or out[-1] != r"\s+":
+                out.append(r"\s+")
+        elif ch in "'’":
+            out.append("['’]?")
+        elif ch == "-":
+            out.append(r"[-\s]?")
+        else:
+            out.append(re.escape(ch))
+    return "".join(out)
+
+
+def _name_word_ok(word: str) -> bool:
+    letters = word.replace(".", "")
+    if len(letters) < 2 or not letters[0].isalpha():
+        return False
+    low = word.lower()
+    triggers = default_triggers()
+    if low in triggers.stop_words or low in triggers.cue_words:
+        return False
+    census = is_first_name(word) or is_last_name(word)
+    return census or not is_english_word(word)
+
+
+def _name_entries(value: str, score: float) -> list[Entry]:
+    words = [w for w in re.split(r"[\s,]+", value.strip()) if w]
+    # A one-word name goes through the word checks below like any other word.
+    full = [(flex_pattern(" ".join(words)), False, "NAME", score, len(value))] if len(words) > 1 else []
+    entries: list[Entry] = full
+    plain = [w for w in words if not w.endswith(".") and len(w) > 1]
+    for w in plain:
+        if not _name_word_ok(w):
+            continue
+        if is_common_word(w):  # "Grant": capitalised or capitals only
+            for form in {w[0].upper() + w[1:].lower(), w.upper()}:
+                entries.append((flex_pattern(form), True, "NAME", score * 0.9, len(w)))
+        else:
+            entries.append((flex_pattern(w), False, "NAME", score * 0.95, len(w)))
+    if len(plain) >= 2:
+        first, last = plain[0], plain[-1]
+        entries.append((flex_pattern(f"{last}, {first}"), False, "NAME", score, len(value) + 1))
+        entries.append(
+            (rf"{re.escape(first[0].upper())}\.\s?{flex_pattern(last)}", True, "NAME", score, len(value))
+        )
+        initials = r"\.\s?".join(re.escape(w[0].upper()) for w in plain) + r"\."
+        entries.append((initials, True, "NAME", score * 0.8, len(plain) * 2))
+    return entries
+
+
+def _id_entries(label: str, value: str, score: float) -> list[Entry]:
+    chars = [c for c in value if c.isalnum()]
+    if len(chars) < 4 or sum(c.isdigit() for c in chars) < 3:
+        return [(flex_pattern(value), False, label, score, len(value))] if len(value) >= 4 else []
+    if label != "PHONE" and label != "FAX":
+        while len(chars) > 4 and chars[0] == "0":
+            chars.pop(0)
+    body = _SEP.join(re.escape(c) for c in chars)
+    lead = "0*" if label not in ("PHONE", "FAX", "SSN") else ""
+    return [(lead + body, False, label, score, len(value))]
+
+
+def entries_for(label: str, value: str, score: float = 0.9) -> list[Entry]:
+    """The search entries that one found value contributes (empty for labels never propagated)."""
+    value = value.strip()
+    if label in SKIP_LABELS or len(value.replace(".", "")) < 2:
+        return []
+    if label == "NAME":
+        return _name_entries(value, score)
+    if label in ID_LABELS:
+        return _id_entries(label, value, score)
+    if " " not in value and (is_english_word(value) or is_common_word(value)) and not value[0].isdigit():
+        return []  # a single everyday word found as a CITY or FACILITY: too risky to spread
+    return [(flex_pattern(value), False, label, score, len(value))]
+
+
+def propagate(note: Note, spans: Sequence[Span], extra_values: Iterable[tuple[str, str]] = ()) -> list[Span]:
+    """New spans for every other mention of the values in ``spans`` (and ``extra_values``).
+
+    Args:
+        note: The note being de-identified.
+        spans: Spans already found in it by the detectors.
+        extra_values: ``(label, value)`` pairs found in the same patient's other notes.
+
+    Returns:
+        Spans with source ``propagate.v1/<label>`` that do not lie inside an
+        already found span; sorted by position.
+    """
+    entries: dict[tuple[str, bool], tuple[str, float]] = {}
+    values = [(s.label, s.text_in(note), s.score) for s in spans]
+    values += [(label, value, 0.9) for label, value in extra_values]
+    order: dict[tuple[str, bool], int] = {}
+    for label, value, score in values:
+        for rx, case, lab, sc, size in entries_for(label, value, min(score, 0.95)):
+            key = (rx, case)
+            if key not in entries or entries[key][1] < sc:
+                entries[key] = (lab, sc)
+                order[key] = max(order.get(key, 0), size)
+    if not entries:
+        return []
+    keys = sorted(entries, key=lambda k: (-order[k], k))
+    pattern = compile_alternation(keys)
+    covered = sorted((s.start, s.end) for s in spans)
+    starts = [c[0] for c in covered]
+    found: list[Span] = []
+    for m in pattern.finditer(note.text):
+        if _inside(covered, starts, m.start(), m.end()):
+            continue
+        label, score = entries[keys[(m.lastindex or 1) - 1]]
+        found.append(Span(m.start(), m.end(), label, score, source_name(NAME, label)))
+    return found
+
+
+def compile_alternation(items: Sequence[tuple[str, bool]]) -> re.Pattern[str]:
+    """One regex for ``(regex, case_sensitive)`` items; group ``i + 1`` is item ``i``.
+
+    The items must hold no capturing groups; put longer values first, since an
+    alternation takes the first alternative that matches, not the longest.
+    """
+    alternation = "|".join(f"({rx})" if case else f"((?i:{rx}))" for rx, case in items)
+    return re.compile(rf"(?<![\w])(?:{alternation})(?![\w])")
+
+
+def _inside(covered: list[tuple[int, int]], starts: list[int], start: int, end: int) -> bool:
+    i = bisect.bisect_right(starts, start)
+    return any(covered[j][1] >= end for j in range(i))

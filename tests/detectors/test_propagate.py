@@ -1,0 +1,79 @@
+"""Propagation of found identifiers to their other mentions: ``propagate.v1``."""
+
+from __future__ import annotations
+
+import pytest
+
+from deid.detectors.propagate import propagate
+from deid.model import Note, Span
+
+
+def _span(text: str, value: str, label: str, nth: int = 0) -> Span:
+    start = -1
+    for _ in range(nth + 1):
+        start = text.index(value, start + 1)
+    return Span(start, start + len(value), label, 0.9, "test.v1")
+
+
+def _found(text: str, spans: list[Span], extra: list[tuple[str, str]] | None = None) -> list[tuple[str, str]]:
+    note = Note("n1", text)
+    return [(s.text_in(note), s.source) for s in propagate(note, spans, extra or [])]
+
+
+@pytest.mark.parametrize(
+    ("text", "seed", "expected"),
+    [
+        # Invented names. Other case, possessive (the 's stays out: common practice), last name alone.
+        ("Dr. Harold Quimby saw pt. Later QUIMBY's nurse called.", "Harold Quimby", ["QUIMBY"]),
+        ("Dr. Harold Quimby saw pt. harold agreed.", "Harold Quimby", ["harold"]),
+        ("Harold Quimby here. Note by Quimby, Harold.", "Harold Quimby", ["Quimby, Harold"]),
+        ("Harold Quimby here. H. Quimby signed. H.Q. agreed.", "Harold Quimby", ["H. Quimby", "H.Q."]),
+        ("Ms. O'Neill seen. Later O’Neill called.", "O'Neill", ["O’Neill"]),
+    ],
+)
+def test_name_mentions(text: str, seed: str, expected: list[str]) -> None:
+    got = _found(text, [_span(text, seed, "NAME")])
+    assert [g[0] for g in got] == expected
+    assert all(source == "propagate.v1/NAME" for _, source in got)
+
+
+def test_everyday_word_surname_only_capitalised() -> None:
+    text = "Dr. Mary Grant saw pt. Grant agreed. Applied for a grant. GRANT signed."
+    got = [g[0] for g in _found(text, [_span(text, "Mary Grant", "NAME")])]
+    assert got == ["Grant", "GRANT"]
+
+
+def test_initials_need_dots() -> None:
+    # "HQ" without dots is too often an abbreviation to propagate (common practice).
+    text = "Harold Quimby seen. HQ notified."
+    assert _found(text, [_span(text, "Harold Quimby", "NAME")]) == []
+
+
+def test_ids_with_other_separators_and_without_leading_zeros() -> None:
+    text = "MRN 00123456. Old chart lists 123456 and 0012-3456; 9123456 is another."
+    got = _found(text, [_span(text, "00123456", "MRN")])
+    assert got == [("123456", "propagate.v1/MRN"), ("0012-3456", "propagate.v1/MRN")]
+
+
+def test_dates_and_short_or_clinical_words_are_not_propagated() -> None:
+    text = "Seen 03/04/2021 by Dr. Al. Follow up 03/04/2021. Pain noted; pain again."
+    spans = [_span(text, "03/04/2021", "DATE"), _span(text, "Pain", "NAME")]
+    assert _found(text, spans) == []
+
+
+def test_extra_values_from_earlier_notes() -> None:
+    text = "Pt seen with daughter Oluwaseun; Oluwaseun drove."
+    got = _found(text, [], [("NAME", "Oluwaseun Adebayo")])
+    assert [g[0] for g in got] == ["Oluwaseun", "Oluwaseun"]
+
+
+def test_mentions_inside_found_spans_are_not_returned() -> None:
+    text = "Harold Quimby. Harold Quimby."
+    spans = [_span(text, "Harold Quimby", "NAME"), _span(text, "Harold Quimby", "NAME", 1)]
+    assert _found(text, spans) == []
+
+
+def test_address_value() -> None:
+    text = "Lives at 12 Elm Street. Mail to 12 elm street please."
+    got = _found(text, [_span(text, "12 Elm Street", "STREET")])
+    assert got == [("12 elm street", "propagate.v1/STREET")]
