@@ -14,9 +14,9 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from deid.errors import NoteRejected
+from deid.errors import ConfigError, NoteRejected
 from deid.io.base import ColumnMap
-from deid.io.open import open_reader, open_writer
+from deid.io.open import open_reader, open_writer, reason_kind
 from deid.io.side_files import RejectWriter, SpanWriter, write_manifest
 from deid.keys import SecretKey
 from deid.model import LABELS, Note
@@ -72,7 +72,7 @@ def _stream(
 
 def _reject(summary: RunSummary, rejects: RejectWriter, rej: NoteRejected) -> None:
     summary.rejected += 1
-    summary.reject_reasons[rej.reason.split(" (")[0]] += 1
+    summary.reject_reasons[reason_kind(rej.reason)] += 1
     rejects.write(rej)
 
 
@@ -97,6 +97,11 @@ def _process(
     reader = open_reader(input_path, columns, manifest, input_format)
     writer = open_writer(output_format or reader.format, out_dir, columns, reader) if spec.key is not None else None
     spans_path = spans_path or out_dir / "spans.jsonl"
+    side = {spans_path.resolve(), (out_dir / "rejects.jsonl").resolve(), (out_dir / "run.json").resolve()}
+    if writer is not None and Path(writer.path).resolve() in side:
+        reader.close()
+        writer.close()
+        raise ConfigError(f"the output notes file {writer.path} would overwrite a side file; rename the input")
     span_writer = SpanWriter(spans_path, keep_originals)
     rejects = RejectWriter(out_dir / "rejects.jsonl")
     try:
