@@ -1,0 +1,170 @@
+"""Turn the entities spaCy already found into chartveil candidates (``spacy_ner.v1``).
+
+The engine runs spaCy once per note; this recognizer only reads
+``nlp_artifacts.entities``. spaCy's small English model was trained on news,
+not notes, so its raw entities need cleaning before they are useful:
+
+* an entity is cut at line breaks, runs of spaces and code-like characters,
+  because the model happily joins a name to the next header line;
+* PERSON pieces lose titles and relations ("Dr.", "Husband"), trailing
+  credentials ("MD", "DOB") and a possessive, so the span is the name;
+* pieces that do not start with a capital letter, short all-capital
+  abbreviations (COPD, ICU, MD as a GPE) and drug, section and device words
+  from ``deid/data/spacy_ner_stoplist.txt`` (Lasix, Foley, Neuro) are dropped;
+* labels map to ours: PERSON -> NAME; GPE -> STATE / COUNTRY / CITY by the
+  gazetteer lists; LOC -> CITY or COUNTRY; ORG -> ORGANIZATION, or FACILITY
+  when it ends in a care word ("... Medical Center"); FAC -> FACILITY, or
+  STREET when it ends in a street word. Everything else was already dropped
+  by the engine's NLP configuration.
+"""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Iterator
+from functools import lru_cache
+
+from presidio_analyzer import EntityRecognizer, RecognizerResult
+from presidio_analyzer.nlp_engine import NlpArtifacts
+
+from deid.detectors.gazetteer import STREET_WORDS, places
+from deid.resources import data_file
+
+NAME = "spacy_ner.v1"
+
+#: Base score per our label; a single-word NAME gets a little less (more often wrong).
+SCORES = {
+    "NAME": 0.85, "CITY": 0.75, "STATE": 0.8, "COUNTRY": 0.8,
+    "FACILITY": 0.7, "ORGANIZATION": 0.6, "STREET": 0.7, "COUNTY": 0.75,
+}
+SINGLE_WORD_NAME_SCORE = 0.7
+
+#: Characters and gaps that end a piece: line breaks, 2+ spaces, tabs, code punctuation.
+_BREAK = re.compile(r"\n|\r|\t| {2,}|[/|;()\[\]{}<>=@%\"\\_*#]")
+_TOKEN = re.compile(r"\S+")
+_LEADING_PERSON = frozenset(
+    ["dr", "dr.", "doctor", "mr", "mr.", "mrs", "mrs.", "ms", "ms.", "miss", "mx", "mx.", "prof", "prof.", "nurse", "sgt", "sgt.", "husband", "wife", "son", "daughter", "mother", "father", "niece", "nephew", "sister", "brother", "friend", "patient", "pt", "pt.", "continue", "seen", "by", "with", "and", "per"]
+)
+_CREDENTIAL = re.compile(r"^(?:[A-Z]{2,5}|M\.?D\.?|Ph\.?D\.?|[A-Z]{2,4}-[A-Z]{1,2})[,.]?$")
+
+
+@lru_cache(maxsize=1)
+def _word_set(name: str) -> frozenset[str]:
+    lines = data_file(name).read_text(encoding="utf-8").splitlines()
+    return frozenset(ln.strip().lower() for ln in lines if ln.strip() and not ln.startswith("#"))
+
+
+def _pieces(text: str, start: int, end: int) -> Iterator[tuple[int, int]]:
+    """Split ``text[start:end]`` at breaks; yield the offsets of each piece."""
+    pos = start
+    for m in _BREAK.finditer(text, start, end):
+        yield pos, m.start()
+        pos = m.end()
+    yield pos, end
+
+
+def _trim(text: str, start: int, end: int, person: bool) -> tuple[int, int] | None:
+    """Drop edge tokens that are not part of the name; None when nothing is left."""
+    toks = [(m.start() + start, m.end() + start) for m in _TOKEN.finditer(text[start:end])]
+    while toks:
+        word = text[toks[0][0] : toks[0][1]]
+        if any(c.isdigit() for c in word) or not word[0].isalpha() or (person and word.lower() in _LEADING_PERSON):
+            toks.pop(0)
+            continue
+        break
+    while toks:
+        word = text[toks[-1][0] : toks[-1][1]]
+        credential = person and len(toks) > 1 and _CREDENTIAL.match(word) is not None
+        if any(c.isdigit() for c in word) or credential or not any(c.isalpha() for c in word):
+            toks.pop()
+            continue
+        break
+    if not toks:
+        return None
+    s, e = toks[0][0], toks[-1][1]
+    while e > s and not text[e - 1].isalnum():
+        e -= 1
+    e = _strip_possessive(text, s, e)
+    return (s, e) if e > s else None
+
+
+def _strip_possessive(text: str, s: int, e: int) -> int:
+    for suffix in ("'s", "\u2019s", "'", "\u2019"):
+        if text[s:e].endswith(suffix):
+            return e - len(suffix)
+    return e
+
+
+def _keep(piece: str, person: bool) -> bool:
+    """Reject pieces that are abbreviations, lower-case words or stop-listed terms."""
+    if not piece or not piece[0].isupper():
+        return False
+    words = piece.split()
+    limit = 4 if person else 5
+    if len(words) == 1 and piece.isupper() and len(piece) <= limit:
+        return False
+    stop = _word_set("spacy_ner_stoplist.txt")
+    return not any(w.lower().strip(".,:") in stop for w in words)
+
+
+def map_label(spacy_label: str, piece: str) -> str | None:
+    """Our label for a cleaned piece spaCy labelled ``spacy_label`` (None: drop)."""
+    last = piece.split()[-1].lower().rstrip(".,") if piece.split() else ""
+    care = _word_set("facility_words.txt")
+    if last in care or piece.lower().endswith(" urgent care"):
+        return "FACILITY"
+    if last in ("county", "parish", "borough") and len(piece.split()) > 1:
+        return "COUNTY"
+    if piece.split()[-1].rstrip(".,") in STREET_WORDS and len(piece.split()) > 1:
+        return "STREET"
+    if spacy_label == "PERSON":
+        return "NAME"
+    if spacy_label in ("GPE", "LOC"):
+        kind = places().classify(piece)
+        if spacy_label == "LOC" and kind == "STATE":
+            return "STATE"
+        return kind if kind in ("STATE", "COUNTRY") else "CITY"
+    if spacy_label == "ORG":
+        return "ORGANIZATION"
+    if spacy_label == "FAC":
+        return "FACILITY"
+    return None
+
+
+class SpacyEntityRecognizer(EntityRecognizer):
+    """Presidio recognizer over spaCy's entities; never runs spaCy itself."""
+
+    ENTITIES: tuple[str, ...] = ("NAME", "CITY", "COUNTY", "STATE", "COUNTRY", "FACILITY", "ORGANIZATION", "STREET")
+
+    def __init__(self) -> None:
+        super().__init__(supported_entities=list(self.ENTITIES), name=NAME, supported_language="en")
+
+    def load(self) -> None:
+        """Nothing to load: the model already ran in the NLP engine."""
+
+    def analyze(
+        self, text: str, entities: list[str], nlp_artifacts: NlpArtifacts | None = None
+    ) -> list[RecognizerResult]:
+        """Cleaned, relabelled spaCy entities (``entities`` restricts our labels)."""
+        if nlp_artifacts is None:
+            return []
+        wanted = set(entities or self.ENTITIES)
+        out: list[RecognizerResult] = []
+        for ent in nlp_artifacts.entities:
+            person = ent.label_ == "PERSON"
+            for s, e in _pieces(text, ent.start_char, ent.end_char):
+                trimmed = _trim(text, s, e, person)
+                if trimmed is None or not _keep(text[trimmed[0] : trimmed[1]], person):
+                    continue
+                piece = text[trimmed[0] : trimmed[1]]
+                label = map_label(ent.label_, piece)
+                if label is None or label not in wanted:
+                    continue
+                score = SCORES[label]
+                if label == "NAME" and len(piece.split()) == 1:
+                    score = SINGLE_WORD_NAME_SCORE
+                out.append(RecognizerResult(label, trimmed[0], trimmed[1], score, recognition_metadata={
+                    RecognizerResult.RECOGNIZER_NAME_KEY: NAME,
+                    RecognizerResult.RECOGNIZER_IDENTIFIER_KEY: self.id,
+                }))
+        return out

