@@ -231,6 +231,50 @@ def demo(out_dir: Path, quiet: bool) -> None:
     click.echo(CAUTION)
 
 
+@cli.command()
+@click.argument("gold_path", metavar="GOLD", type=click.Path(exists=True, path_type=Path))
+@click.option("-o", "--output", "out_dir", required=True, type=click.Path(file_okay=False, path_type=Path),
+              help="Folder for leakage-report.html and leakage-report.json.")
+@click.option("--policy", metavar="FILE|NAME", help="Policy TOML file, or a built-in: 'default', 'safe-harbor'.")
+@click.option("--spans", "spans_path", type=click.Path(exists=True, dir_okay=False, path_type=Path),
+              help="Score this spans file from `chartveil scan` instead of running detection here.")
+@click.option("--label-map", type=click.Path(exists=True, dir_okay=False, path_type=Path),
+              help="TOML or CSV mapping the gold's label names onto chartveil's.")
+@click.option("--roster", type=click.Path(exists=True, dir_okay=False, path_type=Path),
+              help="CSV of known identifiers per patient, as for `run`.")
+@click.option("--min-recall", type=click.FloatRange(0, 1),
+              help="Gate: overall Safe Harbor token recall needed to pass (default: the policy's).")
+@click.option("--seed", type=int, default=20240229, show_default=True, help="Bootstrap seed (reports are reproducible).")
+@click.option("--resamples", type=click.IntRange(100), default=2000, show_default=True, help="Bootstrap resamples.")
+@click.option("--workers", type=click.IntRange(0), default=1, show_default=True, help="Worker processes; 0 = all cores.")
+def evaluate(gold_path: Path, out_dir: Path, policy: str | None, spans_path: Path | None, label_map: Path | None,
+             roster: Path | None, min_recall: float | None, seed: int, resamples: int, workers: int) -> None:
+    """Measure what leaks on a labelled test set GOLD and write a leakage report.
+
+    GOLD is a JSONL file (note_id, patient_id, text, spans with start, end,
+    label) or a BRAT standoff folder (.txt + .ann pairs). Exits 1 when token
+    recall misses the gate (overall, or per label from the policy's
+    [gate.per_label]) and names the failing labels; 2 on a usage or input error.
+
+    \b
+    Example:
+      chartveil evaluate labelled.jsonl -o report/ --min-recall 0.99
+      chartveil evaluate brat_folder/ -o report/ --label-map labels.toml --spans found/spans.jsonl
+    """
+    from deid.leakage import assess
+
+    outcome = assess(gold_path, out_dir, policy=_policy(policy), spans_path=spans_path, label_map=label_map,
+                     roster=roster, min_recall=min_recall, seed=seed, resamples=resamples,
+                     workers=_workers(workers))
+    click.echo(outcome.summary)
+    for name, path in outcome.files.items():
+        click.echo(f"  {name:>5}: {path}")
+    click.echo(CAUTION)
+    if not outcome.passed:
+        click.echo("gate failed: " + ", ".join(outcome.failing), err=True)
+        raise click.exceptions.Exit(EXIT_GATE)
+
+
 def main() -> None:
     """Console entry point."""
     cli()
