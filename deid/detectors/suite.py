@@ -86,7 +86,10 @@ def build_suite(
     for name in recognizers:
         made = detectors.get(name)()
         extra_recognizers.extend(made if isinstance(made, list) else [made])
-    analyzer = detectors.get("presidio.v1")(extra_recognizers=extra_recognizers, score_threshold=policy.score_threshold)
+    analyzer = detectors.get("presidio.v1")(
+        extra_recognizers=extra_recognizers, score_threshold=policy.score_threshold, use_spacy_ner=False,
+        use_gazetteer=False
+    )
     extra: list[Detector] = []
     if roster is not None:
         extra.append(detectors.get("roster.v1")(roster))  # type: ignore[arg-type]
