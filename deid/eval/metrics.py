@@ -332,6 +332,7 @@ def evaluate(
     n_resamples: int = DEFAULT_RESAMPLES,
     seed: int = DEFAULT_SEED,
     confidence: float = DEFAULT_CONFIDENCE,
+    detections: Mapping[str, Sequence[Span]] | None = None,
 ) -> EvalResult:
     """Score ``predictions`` against ``gold`` in both scopes, with intervals.
 
@@ -342,6 +343,10 @@ def evaluate(
     Args:
         gold: Gold notes from :func:`deid.eval.gold.load_gold`.
         predictions: Spans per note id; notes without an entry had no spans.
+        detections: Optional spans for the all-label scope: every detection,
+            including labels the policy keeps (STATE, COUNTRY by default), since
+            that scope measures whether quasi-identifiers are found at all.
+            ``None`` scores ``predictions`` in both scopes.
         n_resamples: Bootstrap resamples of the notes.
         seed: Bootstrap seed (fixed by default so reports are reproducible).
         confidence: Level of every interval.
@@ -350,11 +355,14 @@ def evaluate(
         InputError: a prediction names an unknown note or runs past its text.
     """
     _check_predictions(gold, predictions)
+    if detections is not None:
+        _check_predictions(gold, detections)
     result: dict[str, ScopeResult] = {}
     for name, labels in SCOPES.items():
         scope = _Scope(name, labels)
+        source = detections if detections is not None and name == "all" else predictions
         for gold_note in gold:
-            scope.add(gold_note, predictions.get(gold_note.note.note_id, ()))
+            scope.add(gold_note, source.get(gold_note.note.note_id, ()))
         result[name] = scope.finish(n_resamples, seed, confidence)
     return EvalResult(
         n_notes=len(gold),
