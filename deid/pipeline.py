@@ -16,7 +16,7 @@ from deid.detectors.suite import DetectionSuite
 from deid.errors import NoteRejected
 from deid.keys import SecretKey
 from deid.model import Note, Span
-from deid.operators.base import NoteState, Operator
+from deid.operators.base import KeyedOperator, NoteState
 from deid.operators.dates import parse_date, patient_offset_days, shift_note_date
 from deid.policy import Policy
 from deid.registry import operators
@@ -74,7 +74,7 @@ class Replacer:
     def __init__(self, policy: Policy, key: SecretKey) -> None:
         self.policy = policy
         self.key = key
-        self._ops: dict[str, Operator] = {}
+        self._ops: dict[str, KeyedOperator] = {}
         for label, rule in policy.rules.items():
             if rule.action == "surrogate" and rule.operator:
                 factory = operators.get(rule.operator)
@@ -87,7 +87,8 @@ class Replacer:
             return original
         if rule.action == "mask":
             return self.policy.mask(label)
-        return self._ops[label].apply(original, label, state)
+        # Through Presidio's operator interface: the state travels in the parameters.
+        return self._ops[label].operate(original, {"label": label, "state": state})
 
     def apply(self, note: Note, spans: Sequence[Span]) -> tuple[Note, tuple[Span, ...]]:
         """Return the de-identified note and the spans carrying their surrogates."""

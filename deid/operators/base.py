@@ -10,7 +10,10 @@ from __future__ import annotations
 
 import datetime as dt
 from dataclasses import dataclass, field
-from typing import Protocol
+from typing import Any, Protocol
+
+from presidio_anonymizer.operators import Operator as PresidioOperator
+from presidio_anonymizer.operators import OperatorType
 
 from deid.keys import SecretKey
 from deid.policy import Policy
@@ -52,3 +55,41 @@ class Operator(Protocol):
     def apply(self, original: str, label: str, state: NoteState) -> str:
         """Return the replacement for ``original`` (a span's text with label ``label``)."""
         ...
+
+
+class KeyedOperator(PresidioOperator):
+    """Base class of chartveil's operators: Presidio's operator interface over ``apply``.
+
+    Because every operator is also a Presidio anonymizer operator (``operate``,
+    ``validate``, ``operator_name``, ``operator_type``), it can be added to a
+    Presidio ``AnonymizerEngine`` with ``add_anonymizer`` and driven there with
+    ``OperatorConfig(name, {"label": ..., "state": NoteState(...)})``. The state
+    travels in the parameters, never in the operator object.
+    """
+
+    name: str = ""
+
+    def apply(self, original: str, label: str, state: NoteState) -> str:
+        """Return the replacement for ``original``; subclasses implement it."""
+        raise NotImplementedError
+
+    def operate(self, text: str, params: dict[str, Any] | None = None) -> str:
+        """Presidio entry point: ``params`` carries ``label`` and ``state``."""
+        self.validate(params)
+        assert params is not None
+        return self.apply(text, params["label"], params["state"])
+
+    def validate(self, params: dict[str, Any] | None = None) -> None:
+        """Check that Presidio handed in a label and an explicit :class:`NoteState`."""
+        from presidio_anonymizer.entities import InvalidParamError
+
+        if not params or not isinstance(params.get("state"), NoteState) or not isinstance(params.get("label"), str):
+            raise InvalidParamError(f"{self.name}: params need 'label' (str) and 'state' (NoteState)")
+
+    def operator_name(self) -> str:
+        """The registered, versioned name."""
+        return self.name
+
+    def operator_type(self) -> OperatorType:
+        """chartveil operators anonymize (they cannot be reversed without the originals)."""
+        return OperatorType.Anonymize

@@ -23,7 +23,7 @@ from __future__ import annotations
 import ipaddress
 import re
 
-from deid.operators.base import NoteState
+from deid.operators.base import KeyedOperator, NoteState
 from deid.operators.choose import guard, keyed_bytes, keyed_chars, normalise, unique
 from deid.registry import operators
 
@@ -54,7 +54,7 @@ _AREA_CODES = tuple(
 
 
 @operators.register("phone_fiction.v1")
-class PhoneFiction:
+class PhoneFiction(KeyedOperator):
     """Replace a telephone or fax number with a fictional NANP number in the same layout."""
 
     name = "phone_fiction.v1"
@@ -87,7 +87,7 @@ class PhoneFiction:
 
 
 @operators.register("email_reserved.v1")
-class EmailReserved:
+class EmailReserved(KeyedOperator):
     """Replace an e-mail address with a keyed one on an RFC 2606 reserved domain."""
 
     name = "email_reserved.v1"
@@ -107,7 +107,7 @@ class EmailReserved:
 
 
 @operators.register("url_reserved.v1")
-class UrlReserved:
+class UrlReserved(KeyedOperator):
     """Replace a URL's host with a keyed label under an RFC 2606 reserved domain."""
 
     name = "url_reserved.v1"
@@ -136,7 +136,7 @@ class UrlReserved:
 
 
 @operators.register("ip_documentation.v1")
-class IpDocumentation:
+class IpDocumentation(KeyedOperator):
     """Replace an IP address with one from the documentation ranges (RFC 5737, RFC 3849)."""
 
     name = "ip_documentation.v1"
@@ -159,7 +159,7 @@ class IpDocumentation:
 
 
 @operators.register("ssn_unissued.v1")
-class SsnUnissued:
+class SsnUnissued(KeyedOperator):
     """Replace a Social Security number with one from an area the SSA never issues."""
 
     name = "ssn_unissued.v1"

@@ -28,7 +28,7 @@ import datetime as dt
 from dataclasses import dataclass
 
 from deid.keys import SecretKey
-from deid.operators.base import NoteState
+from deid.operators.base import KeyedOperator, NoteState
 from deid.operators.date_formats import DateFormat, ParsedDate, parse_date, render
 from deid.policy import Policy
 from deid.registry import operators
@@ -137,7 +137,7 @@ def shift_note_date(value: str, state: NoteState) -> str:
 
 @operators.register("date_shift.v1")
 @dataclass(frozen=True)
-class DateShift:
+class DateShift(KeyedOperator):
     """Moves a date by the patient's keyed offset, keeping its written format."""
 
     name: str = "date_shift.v1"
@@ -149,7 +149,7 @@ class DateShift:
 
 @operators.register("date_year.v1")
 @dataclass(frozen=True)
-class DateYear:
+class DateYear(KeyedOperator):
     """Writes only the year of a date (HIPAA Safe Harbor, 45 CFR 164.514(b)(2)(i)(C))."""
 
     name: str = "date_year.v1"

@@ -30,7 +30,7 @@ fails a checksum is one more sign that it is not a real number.
 
 from __future__ import annotations
 
-from deid.operators.base import NoteState
+from deid.operators.base import KeyedOperator, NoteState
 from deid.operators.choose import guard, keyed_bytes, keyed_chars, normalise, unique
 from deid.registry import operators
 
@@ -54,7 +54,7 @@ def format_preserving(original: str, label: str, state: NoteState, purpose: str 
 
 
 @operators.register("id_format.v1")
-class IdFormat:
+class IdFormat(KeyedOperator):
     """Replace an identifier with a keyed one of exactly the same shape."""
 
     name = "id_format.v1"

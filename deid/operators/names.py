@@ -29,7 +29,7 @@ import re
 from dataclasses import dataclass
 from functools import cache, lru_cache
 
-from deid.operators.base import NoteState
+from deid.operators.base import KeyedOperator, NoteState
 from deid.operators.choose import guard, match_case, normalise, pick, toml_data, word_list
 from deid.registry import operators
 
@@ -197,7 +197,7 @@ def _render(word: str, role: str, state: NoteState) -> str:
 
 
 @operators.register("name_surrogate.v1")
-class NameSurrogate:
+class NameSurrogate(KeyedOperator):
     """Replace a person's name word by word, keeping titles, shape and case."""
 
     name = "name_surrogate.v1"

@@ -21,7 +21,7 @@ from __future__ import annotations
 import re
 from functools import lru_cache
 
-from deid.operators.base import NoteState
+from deid.operators.base import KeyedOperator, NoteState
 from deid.operators.choose import word_list
 from deid.registry import operators
 
@@ -85,7 +85,7 @@ def words_value(text: str) -> int:
 
 
 @operators.register("age_cap.v1")
-class AgeCap:
+class AgeCap(KeyedOperator):
     """Write every age over 89 in a span as the policy's "90 or older" text, keeping the other words."""
 
     name = "age_cap.v1"
@@ -113,7 +113,7 @@ def restricted_prefixes() -> frozenset[str]:
 
 
 @operators.register("zip3.v1")
-class Zip3:
+class Zip3(KeyedOperator):
     """Keep a ZIP code's first three digits (or the restricted prefix) and star the rest."""
 
     name = "zip3.v1"

@@ -26,7 +26,7 @@ from collections.abc import Callable
 from dataclasses import dataclass
 from functools import lru_cache
 
-from deid.operators.base import NoteState
+from deid.operators.base import KeyedOperator, NoteState
 from deid.operators.choose import (
     guard,
     keyed_bytes,
@@ -263,7 +263,7 @@ _BUILDERS: dict[str, Callable[[str, NoteState, int], str]] = {
 
 
 @operators.register("place_list.v1")
-class PlaceList:
+class PlaceList(KeyedOperator):
     """Replace a place, facility, employer or profession from invented lists, keeping its structure."""
 
     name = "place_list.v1"

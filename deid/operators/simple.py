@@ -8,12 +8,12 @@ while a surrogate operator for a new label is being written.
 
 from __future__ import annotations
 
-from deid.operators.base import NoteState
+from deid.operators.base import KeyedOperator, NoteState
 from deid.registry import operators
 
 
 @operators.register("mask.v1")
-class Mask:
+class Mask(KeyedOperator):
     """Replace the span with the policy's mask tag, which names the label."""
 
     name = "mask.v1"
@@ -24,7 +24,7 @@ class Mask:
 
 
 @operators.register("keep.v1")
-class Keep:
+class Keep(KeyedOperator):
     """Leave the span as written (for labels Safe Harbor allows, such as STATE)."""
 
     name = "keep.v1"
