@@ -1,0 +1,130 @@
+"""Pattern specs as Presidio recognizers, plus checks of the examples against outside references."""
+
+from __future__ import annotations
+
+import ipaddress
+import string
+
+import phonenumbers
+import pytest
+import spacy
+from dateutil import parser as date_parser
+from presidio_analyzer import RecognizerResult
+from presidio_analyzer.context_aware_enhancers import LemmaContextAwareEnhancer
+from presidio_analyzer.nlp_engine import NlpArtifacts
+
+from deid.config import load_pattern_specs
+from deid.detectors.base import source_name
+from deid.detectors.patterns import VALIDATED_SCORE, SpecRecognizer, find_all, load_recognizers
+from deid.detectors.validators import VALIDATORS
+
+SPECS = {spec.name: spec for spec in load_pattern_specs()}
+RECOGNIZERS = {r.spec.name: r for r in load_recognizers() if isinstance(r, SpecRecognizer)}
+
+
+def test_one_recognizer_per_spec_named_by_source() -> None:
+    assert set(RECOGNIZERS) == set(SPECS)
+    for name, recognizer in RECOGNIZERS.items():
+        spec = SPECS[name]
+        kind = "field.v1" if spec.field else "regex.v1"
+        assert recognizer.name == source_name(kind, name)
+        assert recognizer.supported_entities == [spec.label]
+
+
+def test_results_carry_recognizer_name_label_and_group_span() -> None:
+    text = "MRN: 0012345  DOB: 03/04/1950"
+    results = RECOGNIZERS["field_mrn"].analyze(text, ["MRN"])
+    assert [(text[r.start:r.end], r.entity_type) for r in results] == [("0012345", "MRN")]
+    assert results[0].recognition_metadata[RecognizerResult.RECOGNIZER_NAME_KEY] == "field.v1/field_mrn"
+    plain = RECOGNIZERS["mrn_labelled"].analyze(text, [])
+    assert plain[0].recognition_metadata[RecognizerResult.RECOGNIZER_NAME_KEY] == "regex.v1/mrn_labelled"
+
+
+def test_other_entities_are_skipped() -> None:
+    assert RECOGNIZERS["field_mrn"].analyze("MRN: 0012345", ["DATE"]) == []
+
+
+@pytest.mark.parametrize(
+    ("entry", "text", "score"),
+    [
+        # CMS NPI check-digit example 1234567893 passes; ...890 fails and keeps the low bare score.
+        ("npi_checksum", "Provider 1234567893", VALIDATED_SCORE),
+        ("npi_checksum", "Provider 1234567890", 0.3),
+        # 49 CFR 565 sample VIN.
+        ("vin_checksum", "Car 1M8GDM9AXKP042788", VALIDATED_SCORE),
+        ("vin_checksum", "Car 1M8GDM9A1KP042788", 0.3),
+        # The labelled entry keeps its own high score whatever the check digit says.
+        ("npi_labelled", "NPI: 1234567890", 0.9),
+    ],
+)
+def test_validator_raises_but_never_removes(entry: str, text: str, score: float) -> None:
+    (result,) = RECOGNIZERS[entry].analyze(text, [])
+    assert result.score == pytest.approx(score)
+    assert result.analysis_explanation.validation_result is (score == VALIDATED_SCORE if
+                                                            SPECS[entry].validator else None)
+
+
+def test_must_match_examples_of_checksum_entries_pass_their_validator() -> None:
+    for spec in SPECS.values():
+        if spec.validator:
+            check = VALIDATORS[spec.validator]
+            for example in spec.must_match:
+                for start, end in example.spans:
+                    assert check(example.text[start:end]), (spec.name, example.text[start:end])
+
+
+class _Engine:
+    """Just enough of an NLP engine for NlpArtifacts' keyword list."""
+
+    def is_stopword(self, word: str, language: str) -> bool:
+        return word in {"the", "a", "is"}
+
+    def is_punct(self, word: str, language: str) -> bool:
+        return all(c in string.punctuation for c in word)
+
+
+def test_context_words_reach_presidio_context_enhancer() -> None:
+    text = "Insulin pump serial AX-99812 checked"
+    doc = spacy.blank("en")(text)
+    artifacts = NlpArtifacts([], doc, [t.idx for t in doc], [t.text.lower() for t in doc], _Engine(), "en")
+    recognizer = RECOGNIZERS["device_labelled"]
+    raw = recognizer.analyze(text, [])
+    (boosted,) = LemmaContextAwareEnhancer().enhance_using_context(text, raw, artifacts, [recognizer])
+    assert text[boosted.start:boosted.end] == "AX-99812"
+    assert boosted.score > raw[0].score
+
+
+def _marked(label: str) -> list[tuple[str, str]]:
+    return [(spec.name, ex.text[s:e]) for spec in SPECS.values() if spec.label == label
+            for ex in spec.must_match for s, e in ex.spans]
+
+
+# Python's ipaddress module (RFC 791 / RFC 4291 address syntax) must accept every IP the examples mark.
+@pytest.mark.parametrize(("entry", "value"), _marked("IP"))
+def test_ip_examples_are_valid_addresses(entry: str, value: str) -> None:
+    ipaddress.ip_address(value)
+
+
+# The phonenumbers library (libphonenumber metadata) must read every marked phone or fax
+# of ten or more digits as a possible number (US default region; shorter ones are local/pager numbers).
+@pytest.mark.parametrize(("entry", "value"), [(n, v) for lab in ("PHONE", "FAX") for n, v in _marked(lab)
+                                              if sum(c.isdigit() for c in v) >= 10])
+def test_phone_examples_are_possible_numbers(entry: str, value: str) -> None:
+    assert phonenumbers.is_possible_number(phonenumbers.parse(value, "US"))
+
+
+# python-dateutil must parse every marked DATE that names a month or has a full numeric form
+# (holidays and plural weekdays are outside what dateutil reads, so those two entries are left out).
+@pytest.mark.parametrize(("entry", "value"), [(n, v) for n, v in _marked("DATE")
+                                              if n not in {"date_holiday", "date_weekday_alone"}
+                                              and (v.count("/") + v.count("-") + v.count(".") >= 2
+                                                   or any(c.isalpha() for c in v.replace("th", "")))])
+def test_date_examples_parse(entry: str, value: str) -> None:
+    cleaned = value.replace("'", "").replace(" of ", " ")
+    date_parser.parse(cleaned, fuzzy=True, dayfirst=value.startswith("31"))
+
+
+def test_find_all_merges_regexes_and_drops_repeats() -> None:
+    spec = SPECS["ipv6_address"]
+    assert find_all(spec, "a ::1 b") == [(2, 5)]
+    assert find_all(spec, "none here") == []
