@@ -61,12 +61,13 @@ EMPLOYERS = [("Pellington Freight Lines", "dispatcher"), ("Quillmont Tool & Die"
              ("Greenhaven Grounds LLC", "landscaper"), ("Marrowby Distribution Center", "warehouse associate"),
              ("Lotus Pearl Nails", "nail technician"), ("Halverton State College", "librarian")]
 RELATIONS = ["spouse", "partner", "child", "sibling", "friend", "neighbour", "grandchild"]
+# Look-alike sentences; the room/bed one carries FACILITY markup (rooms and beds are FACILITY).
 TRAPS = ["BP 132/84, HR 76, T 36.9 C, SpO2 97% RA.", "GCS 14 (E4 V4 M6).", "Nodule at 7 o'clock, 2 cm FN.",
          "Tenderness over L4-L5 and the SI joint.", "Metoprolol 25 mg BID; atorvastatin 40 mg at 21:00.",
          "Dx codes: I10, E11.9, Z79.4.", "Hgb 10.9, WBC 7.2, plt 214, Na 138, K 4.1.",
          "PHQ-9 score 8; MoCA 24/30.", "Apgar 8/9.", "Last colonoscopy in 2015 was normal.",
          "Babinski sign absent; Romberg negative.", "Ventilator PEEP 5, FiO2 0.40, TV 450.",
-         "Seen in Room 12, bed 2.", "Foley catheter removed at 06:00.", "Murphy's sign positive.",
+         "Seen in {{FACILITY|Room 12}}, {{FACILITY|bed 2}}.", "Foley catheter removed at 06:00.", "Murphy's sign positive.",
          "CHA2DS2-VASc 3, HAS-BLED 2.", "Insulin glargine 18 units at 22:00.", "EF 45-50%."]
 STYLES = ["progress", "nursing", "telephone", "ed", "discharge", "radiology", "referral"]
 
