@@ -159,3 +159,15 @@ def test_same_name_same_surrogate_across_notes_runs_and_keys(
     moved = _name_map(other)
     differ = [k for k in shared if k in moved and moved[k] != first[k]]
     assert len(differ) >= 0.9 * len([k for k in shared if k in moved])
+
+
+def test_two_workers_write_exactly_what_one_worker_writes(
+    second_runs: tuple[Path, Path], tmp_path: Path
+) -> None:
+    # Keyed, stateless surrogates: no shared state, so splitting the batches over processes changes nothing.
+    # (The batch size stays the default: propagation between one patient's notes works within a batch.)
+    same, _ = second_runs
+    summary = deidentify(DEMO / "notes.jsonl", tmp_path, demo_key(), workers=2, batch_size=32)
+    assert summary.balanced and summary.notes_out == 33
+    assert (tmp_path / "notes.jsonl").read_text() == (same / "notes.jsonl").read_text()
+    assert (tmp_path / "spans.jsonl").read_text() == (same / "spans.jsonl").read_text()
