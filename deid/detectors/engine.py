@@ -77,6 +77,11 @@ def get_engine(model: str = DEFAULT_MODEL) -> SpacyNlpEngine:
         ),
     )
     engine.load()
+    # NOTE: no detector reads dependency arcs or sentence boundaries, and the
+    # parser is a third of spaCy's time (tests/bench/throughput.py), so it is off.
+    nlp = engine.get_nlp(LANGUAGE)
+    if "parser" in nlp.pipe_names:
+        nlp.disable_pipe("parser")
     _engines[model] = engine
     return engine
 
