@@ -15,6 +15,8 @@ from deid.detectors import clinical_numbers, engine, eponyms, roster  # noqa: F4
 from deid.detectors.gazetteer import GazetteerRecognizer
 from deid.detectors.name_lists import NameListRecognizer
 from deid.detectors.names import NameTriggerRecognizer
+from deid.detectors.organizations import OrganizationRecognizer
+from deid.detectors.professions import ProfessionRecognizer
 from deid.detectors.patterns import load_recognizers
 from deid.detectors.spacy_ner import SpacyEntityRecognizer
 from deid.registry import detectors
@@ -48,3 +50,15 @@ def spacy_entities() -> EntityRecognizer:
 def us_places() -> EntityRecognizer:
     """US cities, counties and states from installed gazetteers."""
     return GazetteerRecognizer()
+
+
+@detectors.register("organizations.v1")
+def organizations_by_suffix() -> EntityRecognizer:
+    """Organisations and care facilities named by their last words ("... LLC", "... Hospital")."""
+    return OrganizationRecognizer()
+
+
+@detectors.register("professions.v1")
+def professions() -> EntityRecognizer:
+    """Occupations of the patient or a relative after a work cue ("works as a", "44M,")."""
+    return ProfessionRecognizer()

@@ -192,6 +192,13 @@ class EponymSuppressor:
             return True
         if "score" in kinds and nxt and _NUMBER.match(nxt[0]):
             return True
+        # "Babinski negative", "Romberg +": an exam finding after a sign or test; but
+        # "Murphy negative for COVID" is a person's test result.
+        exam = {"sign", "test", "score", "reflex", "standalone"}
+        first = after[0] if after else ""
+        person_result = len(after) > 1 and after[1] == "for"
+        if exam & set(kinds) and first in ctx.get("after_finding", frozenset()) and not person_result:
+            return True
         if "device" in kinds and nxt and ({nxt[0], " ".join(nxt)} & ctx.get("device_after", frozenset())):
             return True
         if possessive and (not after or not after[0][:1].isalpha() or after[0] in ctx.get("after_possessive", ())):

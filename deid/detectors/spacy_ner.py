@@ -4,13 +4,23 @@ The engine runs spaCy once per note; this recognizer only reads
 ``nlp_artifacts.entities``. spaCy's small English model was trained on news,
 not notes, so its raw entities need cleaning before they are useful:
 
-* an entity is cut at line breaks, runs of spaces and code-like characters,
-  because the model happily joins a name to the next header line;
+* an entity is cut at line breaks, runs of spaces, spaced dashes, colons,
+  code-like characters and inner codes ("C3D1"), because the model happily
+  joins a name to the next header line or to a regimen;
 * PERSON pieces lose titles and relations ("Dr.", "Husband"), trailing
   credentials ("MD", "DOB") and a possessive, so the span is the name;
 * pieces that do not start with a capital letter, short all-capital
   abbreviations (COPD, ICU, MD as a GPE) and drug, section and device words
   from ``deid/data/spacy_ner_stoplist.txt`` (Lasix, Foley, Neuro) are dropped;
+* a piece that is not a person is dropped when every word is generic or
+  clinical (``organizations.OrgLists.is_generic``: "EMERGENCY DEPARTMENT",
+  "Internal Medicine", "Comparison", "Breast"); generic words are trimmed off
+  its left edge ("Insurance Bluewick") and lower-case words off its right edge
+  ("Grindstone Coffee on"); a piece of short capitals and codes only
+  ("EKG NSR", "VA ID") is dropped, as is any piece followed by a dose
+  ("Metoprolol 25 mg"). Person pieces get the generic check only in header
+  shape (all capitals, or right before a colon: "DISCHARGE SUMMARY", "Dispo:");
+  drugs and headers are not people or places;
 * labels map to ours: PERSON -> NAME; GPE -> STATE / COUNTRY / CITY by the
   gazetteer lists; LOC -> CITY or COUNTRY; ORG -> ORGANIZATION, or FACILITY
   when it ends in a care word ("... Medical Center"); FAC -> FACILITY, or
@@ -40,7 +50,9 @@ SCORES = {
 SINGLE_WORD_NAME_SCORE = 0.7
 
 #: Characters and gaps that end a piece: line breaks, 2+ spaces, tabs, code punctuation.
-_BREAK = re.compile(r"\n|\r|\t| {2,}|[/|;()\[\]{}<>=@%\"\\_*#]")
+_BREAK = re.compile(r"\n|\r|\t| {2,}| [-\u2013\u2014]+ |(?<= )[A-Za-z]*\d[\w-]* |[/|;:()\[\]{}<>=@%\"\\_*#]")
+_DOSE_AFTER = re.compile(r"\s+\d+(?:\.\d+)?\s?(?:mg|mcg|g|ml|mL|units?|meq|mEq|%|tabs?)\b")
+_CODE_WORD = re.compile(r"^(?:[A-Z]{1,4}|[a-z]{1,2}|\S*\d\S*)$")
 _TOKEN = re.compile(r"\S+")
 _LEADING_PERSON = frozenset(
     ["dr", "dr.", "doctor", "mr", "mr.", "mrs", "mrs.", "ms", "ms.", "miss", "mx", "mx.", "prof", "prof.", "nurse", "sgt", "sgt.", "husband", "wife", "son", "daughter", "mother", "father", "niece", "nephew", "sister", "brother", "friend", "patient", "pt", "pt.", "continue", "seen", "by", "with", "and", "per"]
@@ -104,7 +116,39 @@ def _keep(piece: str, person: bool) -> bool:
     if len(words) == 1 and piece.isupper() and len(piece) <= limit:
         return False
     stop = _word_set("spacy_ner_stoplist.txt")
-    return not any(w.lower().strip(".,:") in stop for w in words)
+    if any(w.lower().strip(".,:") in stop for w in words):
+        return False
+    return person or not _generic(piece)
+
+
+def _generic(piece: str) -> bool:
+    """True for a non-person piece that names nothing: codes only, or generic and clinical words only."""
+    from deid.detectors.organizations import org_lists
+
+    words = piece.split()
+    if places().classify(piece) in ("STATE", "COUNTRY"):
+        return False
+    if all(_CODE_WORD.match(w) for w in words):
+        return True  # "EKG NSR", "VA ID": abbreviations and codes, not names
+    generic = org_lists()
+    return all(generic.is_generic(w.strip(".,'\u2019")) for w in words)
+
+
+def _trim_other(text: str, s: int, e: int) -> tuple[int, int] | None:
+    """Trim generic words off the left and lower-case words off the right of a non-person piece."""
+    from deid.detectors.organizations import org_lists
+
+    if places().classify(text[s:e]) in ("STATE", "COUNTRY"):
+        return s, e  # "United Kingdom": a listed name stays whole
+    generic = org_lists()
+    toks = [(m.start() + s, m.end() + s) for m in _TOKEN.finditer(text[s:e])]
+    while len(toks) > 1 and generic.is_generic(text[toks[0][0] : toks[0][1]].strip(".,")):
+        if generic.is_generic(text[toks[1][0] : toks[1][1]].strip(".,")):
+            break  # a generic phrase ("Internal Medicine"): let _keep judge it whole
+        toks.pop(0)
+    while len(toks) > 1 and text[toks[-1][0] : toks[-1][1]].islower():
+        toks.pop()
+    return (toks[0][0], toks[-1][1]) if toks else None
 
 
 def map_label(spacy_label: str, piece: str) -> str | None:
@@ -154,12 +198,17 @@ class SpacyEntityRecognizer(EntityRecognizer):
             person = ent.label_ == "PERSON"
             for s, e in _pieces(text, ent.start_char, ent.end_char):
                 trimmed = _trim(text, s, e, person)
+                if trimmed is not None and not person:
+                    trimmed = _trim_other(text, *trimmed)
                 if trimmed is None or not _keep(text[trimmed[0] : trimmed[1]], person):
+                    continue
+                if _DOSE_AFTER.match(text, trimmed[1]):
                     continue
                 piece = text[trimmed[0] : trimmed[1]]
                 label = map_label(ent.label_, piece)
-                if label is None or label not in wanted:
-                    continue
+                header = piece.isupper() or text[trimmed[1] : trimmed[1] + 1] == ":"
+                if label is None or label not in wanted or ((label != "NAME" or header) and _generic(piece)):
+                    continue  # a person's name in capitals or before ":" is checked too ("DISCHARGE SUMMARY")
                 score = SCORES[label]
                 if label == "NAME" and len(piece.split()) == 1:
                     score = SINGLE_WORD_NAME_SCORE

@@ -87,7 +87,14 @@ CASES = [
     ("Wolff-Parkinson-White on ECG.", "Wolff-Parkinson-White", "NAME", True),
     ("Gleason 3+4 adenocarcinoma.", "Gleason", "NAME", True),
     ("Bruce protocol stress test.", "Bruce", "NAME", True),
+    # an exam finding right after a sign or test (common practice in neuro exam notes)
+    ("Babinski negative bilaterally.", "Babinski", "NAME", True),
+    ("Romberg positive.", "Romberg", "NAME", True),
+    ("Tinel + at the wrist.", "Tinel", "NAME", True),
+    ("Mallampati II.", "Mallampati II", "FACILITY", True),
     # the same words as people or places: kept as identifiers
+    ("Murphy negative for COVID, sent home.", "Murphy", "NAME", False),  # a result "for" something: a person
+    ("Dr. Romberg positive about plan.", "Romberg", "NAME", False),
     ("Mr. Parkinson was seen today.", "Parkinson", "NAME", False),
     ("Mr Parkinson's daughter called.", "Parkinson", "NAME", False),
     ("Dr. Hodgkin reviewed the film.", "Hodgkin", "NAME", False),

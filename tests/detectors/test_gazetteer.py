@@ -39,6 +39,13 @@ CASES = [
     ("She lives in Virginia.", {("Virginia", "STATE")}),
     ("Travelled to Poland in June.", set()),  # a country (spaCy reports it), not Poland, ME
     ("Reading glasses lost.", set()),
+    # address blocks (USPS Publication 28 layout: street line, then city, state and ZIP)
+    ("Address:\n206 Birchmoor Close\nDunmarrow, Tamsin County\nOH 45998\n",
+     {("Dunmarrow", "CITY"), ("Tamsin County", "COUNTY"), ("OH", "STATE")}),
+    ("600 Mill Race Road\nWrenfield KY\n41911-2207\n", {("Wrenfield", "CITY"), ("KY", "STATE")}),
+    ("Lives at 2240 Ravensmoor Dr, #B, Greyhaven. Stable.", {("Greyhaven", "CITY")}),
+    ("Home address (4 Cobblers Yard, Kestrel Bend 41906).", {("Kestrel Bend", "CITY")}),
+    ("Interpreter line used (ID 40221).", set()),  # "ID" before a number is no state
 ]
 
 

@@ -23,8 +23,8 @@ class VetoAll:
 def test_table_order_is_the_documented_one() -> None:
     # The precedence file is the single source of truth; this snapshot makes a change deliberate.
     assert P.order == (
-        "roster.v1", "field.v1", "regex.v1", "names.v1", "propagate.v1", "spacy_ner.v1", "gazetteer.v1",
-        "name_lists.v1",
+        "roster.v1", "field.v1", "regex.v1", "names.v1", "propagate.v1", "professions.v1", "organizations.v1",
+        "spacy_ner.v1", "gazetteer.v1", "name_lists.v1",
     )
     assert P.protected == frozenset({"roster.v1", "field.v1"})
 
@@ -50,7 +50,9 @@ def test_overlap_merges_to_the_union() -> None:
         ("field.v1/mrn_field", "regex.v1/id_long_number"),
         ("regex.v1/date_numeric", "names.v1/title"),
         ("names.v1/title", "propagate.v1/NAME"),
-        ("propagate.v1/NAME", "spacy_ner.v1"),
+        ("propagate.v1/NAME", "professions.v1/work"),
+        ("professions.v1/work", "organizations.v1/suffix"),
+        ("organizations.v1/suffix", "spacy_ner.v1"),
         ("spacy_ner.v1", "gazetteer.v1/city"),
         ("gazetteer.v1/city", "name_lists.v1/pair"),
         ("name_lists.v1/pair", "some_plugin.v1"),  # unknown detectors rank last

@@ -60,6 +60,26 @@ CASES = [
     ("Symptoms of anhedonia.", [("anhedonia", "GPE")], set()),
     ("Hemi Tawhiri\nLindenport Headache Center", [("Hemi Tawhiri\nLindenport Headache Center", "PERSON")],
      {("Hemi Tawhiri", "NAME"), ("Lindenport Headache Center", "FACILITY")}),
+    # departments, headers and clinical words name nothing on their own (common practice:
+    # a department is not a HIPAA identifier; the gold conventions in demo_notes/README.md)
+    ("EMERGENCY DEPARTMENT - DUNMARROW GENERAL HOSPITAL", [("EMERGENCY DEPARTMENT - DUNMARROW GENERAL HOSPITAL", "ORG")],
+     {("DUNMARROW GENERAL HOSPITAL", "FACILITY")}),
+    ("Halverton Family Practice - Clinic visit", [("Halverton Family Practice - Clinic", "ORG")],
+     {("Halverton Family Practice", "FACILITY")}),
+    ("Nkechi Eze, MD, Internal Medicine", [("Internal Medicine", "ORG")], set()),
+    ("Name: Quimby", [("Name", "ORG")], set()),
+    ("Breast composition C.", [("Breast", "ORG")], set()),
+    ("Comparison: 10/1/2023.", [("Comparison", "ORG")], set()),
+    ("EKG NSR. Airway ok.", [("EKG NSR", "ORG")], set()),
+    ("Insurance Bluewick member 55.", [("Insurance Bluewick", "ORG")], {("Bluewick", "ORGANIZATION")}),
+    ("Barista at Grindstone Coffee on Wexley.", [("Grindstone Coffee on", "ORG")],
+     {("Grindstone Coffee", "ORGANIZATION")}),
+    ("Metoprolol 25 mg BID.", [("Metoprolol", "GPE")], set()),  # a dose follows: a drug
+    ("Moved from Leeds, United Kingdom.", [("United Kingdom", "GPE")], {("United Kingdom", "COUNTRY")}),
+    ("DISCHARGE SUMMARY\nName", [("DISCHARGE SUMMARY", "PERSON")], set()),  # a header in capitals
+    ("Dispo: home.", [("Dispo", "PERSON")], set()),
+    ("HAROLD QUIMBY, 71M", [("HAROLD QUIMBY", "PERSON")], {("HAROLD QUIMBY", "NAME")}),
+    ("Sofia Ibarra C3D1 FOLFOX today.", [("Sofia Ibarra C3D1 FOLFOX", "ORG")], {("Sofia Ibarra", "ORGANIZATION")}),
 ]
 
 

@@ -1,0 +1,205 @@
+"""Find organisations and care facilities by their last words (``organizations.v1``).
+
+Employers, insurers, schools, parishes and hospitals announce themselves by
+how their names end: "... LLC", "... Health Plan", "... Paper Mill",
+"... Community Hospital". spaCy's small model finds many of them but misses
+names in capitals and names of invented places, so this recognizer reads
+runs of capitalised words (Title Case or ALL CAPS, with joiners such as
+"of the" and "&" inside) and reports the longest part of a run that ends in
+a suffix from ``deid/data/org_suffixes.txt``; the suffix decides the label
+(ORGANIZATION or FACILITY).
+
+A department is not an identifier: "EMERGENCY DEPARTMENT", "Internal
+Medicine", "Community Hospital" name no particular place. So the part of the
+run before the suffix must keep at least one word that is neither generic
+(``org_generic_words.txt``: departments, headers, "General", "Memorial") nor
+a clinical word (``clinical_words.txt``: the lower-case vocabulary of
+ICD-10-CM, so "Heart Failure Clinic" is dropped too). Generic words and
+leading verbs or prepositions are trimmed off the left edge.
+
+An acronym made of the initials of a found name of three or more words
+("KBRMC" for a five-word centre name) is reported wherever it stands in the
+same note.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+from functools import lru_cache
+
+from presidio_analyzer import EntityRecognizer, RecognizerResult
+from presidio_analyzer.nlp_engine import NlpArtifacts
+
+from deid.resources import data_file
+
+NAME = "organizations.v1"
+CLINICAL_FILE = "clinical_words.txt"
+SCORES = {"suffix": 0.7, "acronym": 0.6}
+_WORD = re.compile(r"&|[A-Za-z\u00c0-\u024f][A-Za-z\u00c0-\u024f'\u2019.-]*")
+_JOINERS = frozenset({"of", "the", "and", "&", "de", "la", "du", "del", "von", "van"})
+#: Street words that, right after a suffix, show the name is a street ("Hospital Drive").
+_STREET_AFTER = frozenset(
+    {"road", "rd", "street", "st", "avenue", "ave", "drive", "dr", "lane", "ln", "way", "court", "ct", "boulevard", "blvd", "pike", "row", "close", "place", "pl", "circle", "highway", "hwy", "parkway", "terrace", "trail"}
+)
+#: Parts of speech that never start a name (spaCy's universal tags).
+_NOT_FIRST = frozenset({"VERB", "AUX", "ADP", "DET", "ADV", "CCONJ", "SCONJ", "PART", "NUM", "INTJ"})
+
+
+def _lines(name: str) -> list[str]:
+    text = data_file(name).read_text(encoding="utf-8")
+    return [ln.strip() for ln in text.splitlines() if ln.strip() and not ln.startswith("#")]
+
+
+@dataclass(frozen=True)
+class OrgLists:
+    """Suffixes (lower-cased word tuples to label) and words that name nothing alone."""
+
+    suffixes: dict[tuple[str, ...], str]
+    generic: frozenset[str]
+    clinical: frozenset[str]
+    abbreviations: frozenset[str] = frozenset()  # suffixes listed with their period ("inc.")
+
+    def is_generic(self, word: str) -> bool:
+        """True for department, header, descriptive and clinical words."""
+        w = word.lower().replace("\u2019", "'").strip(".")
+        return w in self.generic or w in self.clinical or w in _JOINERS or w.removesuffix("'s") in self.generic
+
+
+@lru_cache(maxsize=1)
+def org_lists() -> OrgLists:
+    """The lists, read once per process."""
+    suffixes: dict[tuple[str, ...], str] = {}
+    for line in _lines("org_suffixes.txt"):
+        label, _, phrase = line.partition("\t")
+        suffixes[tuple(w.rstrip(".") for w in phrase.strip().lower().split())] = label.strip()
+    abbreviations = frozenset(w for ln in _lines("org_suffixes.txt") for w in ln.lower().split() if w.endswith("."))
+    return OrgLists(
+        suffixes, frozenset(_lines("org_generic_words.txt")), frozenset(_lines(CLINICAL_FILE)), abbreviations
+    )
+
+
+def derive_clinical_words() -> list[str]:
+    """Lower-case words of three or more letters used in ICD-10-CM texts (slow, ~5 s)."""
+    from deid.detectors.eponyms import icd_texts
+
+    words: set[str] = set()
+    for text in icd_texts():
+        words.update(w for w in re.findall(r"(?<![\w-])[a-z]+(?![\w-])", text) if len(w) >= 3)
+    return sorted(words)
+
+
+def write_clinical_words() -> None:
+    """Regenerate ``deid/data/clinical_words.txt`` from the installed ICD-10-CM release."""
+    header = (
+        "# Lower-case words (3+ letters) of ICD-10-CM descriptions and notes, derived by\n"
+        "# deid.detectors.organizations.derive_clinical_words from simple_icd_10_cm; do not edit.\n"
+    )
+    data_file(CLINICAL_FILE).write_text(header + "\n".join(derive_clinical_words()) + "\n", encoding="utf-8")
+
+
+def _runs(text: str) -> list[list[re.Match[str]]]:
+    """Runs of capitalised words joined by single spaces; joiners only inside a run."""
+    runs: list[list[re.Match[str]]] = []
+    cur: list[re.Match[str]] = []
+    for m in _WORD.finditer(text):
+        word = m.group()
+        capital = word[0].isupper() or word == "&"
+        joined = bool(cur) and text[cur[-1].end() : m.start()] == " "
+        if joined and (capital or word.lower() in _JOINERS):
+            cur.append(m)
+            continue
+        if cur:
+            runs.append(cur)
+        cur = [m] if capital and word != "&" else []
+    if cur:
+        runs.append(cur)
+    return [r[: _last_capital(r) + 1] for r in runs]
+
+
+def _last_capital(run: list[re.Match[str]]) -> int:
+    k = len(run) - 1
+    while k > 0 and run[k].group().lower() in _JOINERS and run[k].group() != "&":
+        k -= 1
+    return k
+
+
+def _pos_of(doc: object, start: int) -> str | None:
+    if doc is None or not hasattr(doc, "char_span"):
+        return None
+    span = doc.char_span(start, start + 1, alignment_mode="expand")
+    return span[0].pos_ if span is not None and len(span) else None
+
+
+def find_organizations(text: str, doc: object = None, lists: OrgLists | None = None) -> list[tuple[int, int, str, float, str]]:
+    """``(start, end, label, score, rule)`` for names ending in an organisation or facility suffix."""
+    lists = lists or org_lists()
+    out: list[tuple[int, int, str, float, str]] = []
+    for run in _runs(text):
+        low = [m.group().lower().rstrip(",.") for m in run]
+        best: tuple[int, str, int] | None = None  # (end index, label, suffix length)
+        for end in range(len(run), 0, -1):
+            for size in (3, 2, 1):
+                if end - size >= 0 and tuple(low[end - size : end]) in lists.suffixes:
+                    best = (end, lists.suffixes[tuple(low[end - size : end])], size)
+                    break
+            if best:
+                break
+        if best is None:
+            continue
+        end, label, size = best
+        if any(w in _STREET_AFTER for w in low[end:]):
+            continue  # "Mill Race Road", "Hospital Drive": a street, left to the street patterns
+        start = 0
+        while start < end - size and (lists.is_generic(low[start]) or _pos_of(doc, run[start].start()) in _NOT_FIRST):
+            start += 1
+        name_words = [w for w in low[start : end - size]]
+        if not any(not lists.is_generic(w) for w in name_words):
+            continue
+        last = run[end - 1]
+        keep_period = last.group().lower() in lists.abbreviations
+        stop = last.end() if keep_period else last.start() + len(last.group().rstrip("."))
+        out.append((run[start].start(), stop, label, SCORES["suffix"], "suffix"))
+    out.extend(_acronyms(text, out))
+    return out
+
+
+def _acronyms(text: str, found: list[tuple[int, int, str, float, str]]) -> list[tuple[int, int, str, float, str]]:
+    """Initials of found names of three or more capitalised words, wherever they stand."""
+    out = []
+    seen: set[str] = set()
+    for s, e, label, _, _ in found:
+        initials = "".join(w[0].upper() for w in re.findall(r"[A-Za-z][\w'-]*", text[s:e]) if w.lower() not in _JOINERS)
+        if len(initials) < 3 or initials in seen:
+            continue
+        seen.add(initials)
+        for m in re.finditer(rf"(?<![\w-]){initials}(?![\w-])", text):
+            out.append((m.start(), m.end(), label, SCORES["acronym"], "acronym"))
+    return out
+
+
+class OrganizationRecognizer(EntityRecognizer):
+    """Presidio recognizer ``organizations.v1``: organisation and facility names by suffix."""
+
+    ENTITIES: tuple[str, ...] = ("ORGANIZATION", "FACILITY")
+
+    def __init__(self) -> None:
+        super().__init__(supported_entities=list(self.ENTITIES), name=NAME, supported_language="en")
+
+    def load(self) -> None:
+        """Lists load lazily on first use (see :func:`org_lists`)."""
+
+    def analyze(
+        self, text: str, entities: list[str], nlp_artifacts: NlpArtifacts | None = None
+    ) -> list[RecognizerResult]:
+        """Every suffix-ended name in ``text`` (``entities`` restricts the labels)."""
+        doc = nlp_artifacts.tokens if nlp_artifacts is not None else None
+        wanted = set(entities or self.ENTITIES)
+        return [
+            RecognizerResult(label, s, e, score, recognition_metadata={
+                RecognizerResult.RECOGNIZER_NAME_KEY: f"{NAME}/{rule}",
+                RecognizerResult.RECOGNIZER_IDENTIFIER_KEY: self.id,
+            })
+            for s, e, label, score, rule in find_organizations(text, doc)
+            if label in wanted
+        ]

@@ -1,0 +1,219 @@
+"""Find the occupation of the patient or a relative (``professions.v1``).
+
+A job title is an identifier in small places ("the only vet in town"), but
+the words are ordinary English and notes are full of staff roles ("discussed
+with the nurse", "surgeon's note") that are not the patient's occupation. So
+an occupation is reported only after a cue that ties it to a person's work:
+
+* a field label ("Occupation: ...", "Job: ...") -- the value is taken whether
+  or not it is listed;
+* a working verb ("works as a", "employed as", "return to work as"), a copula
+  ("is a", "was an"), a status word ("retired", "former"), a relative in
+  apposition ("wife, a ..."), a possessive before "employer"/"job", or an age
+  and sex ("44M,", "58 yo", "(DOB ...), 66,") -- then the phrase must end in an
+  occupation word from the lists.
+
+The phrase after a cue is read word by word, up to four lower-case words,
+stopping at punctuation or a function word; the longest prefix ending in a
+listed occupation or an occupation head word ("bus driver", "loom
+technician") is the span. Status words ("retired") are left outside it.
+
+Lists: ``occupations_faker.txt`` (derived from Faker's open en_US job list by
+:func:`derive_faker_occupations`) and the hand list ``occupations_extra.txt``;
+cues in ``occupation_cues.txt``.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+from functools import lru_cache
+
+from presidio_analyzer import EntityRecognizer, RecognizerResult
+from presidio_analyzer.nlp_engine import NlpArtifacts
+
+from deid.resources import data_file
+
+NAME = "professions.v1"
+FAKER_FILE = "occupations_faker.txt"
+SCORES = {"label": 0.8, "work": 0.75, "before": 0.7, "after": 0.7}
+_WORD = re.compile(r"[A-Za-z0-9][A-Za-z0-9'\u2019]*(?:-[A-Za-z]+)*")
+#: Words a field value may contain that otherwise end a phrase ("Director of Nursing").
+_LABEL_JOINERS = frozenset({"of", "and"})
+MAX_WORDS = 5
+
+
+def _lines(name: str) -> list[str]:
+    text = data_file(name).read_text(encoding="utf-8")
+    return [ln.strip() for ln in text.splitlines() if ln.strip() and not ln.startswith("#")]
+
+
+@dataclass(frozen=True)
+class OccupationLists:
+    """Occupation phrases, their head words, and the cue patterns."""
+
+    phrases: frozenset[str]
+    heads: frozenset[str]
+    label_cues: tuple[re.Pattern[str], ...]
+    work_cues: tuple[re.Pattern[str], ...]
+    before_cues: tuple[re.Pattern[str], ...]
+    after_cues: tuple[re.Pattern[str], ...]
+    blocks: tuple[re.Pattern[str], ...]
+    skip: frozenset[str]
+    stop: frozenset[str]
+    weak: frozenset[str]
+
+    def ends_occupation(self, words: list[str], weak_ok: bool = False) -> bool:
+        """True when the lower-cased words end in a listed occupation or a head word.
+
+        A weak head ("carrier") needs a listed phrase of two or more words to end
+        the words ("mail carrier"); a strong head ("technician") needs only itself.
+        """
+        if words[-1] in self.heads and (weak_ok or words[-1] not in self.weak):
+            return True
+        return any(" ".join(words[k:]) in self.phrases for k in range(len(words) - 1))
+
+
+@lru_cache(maxsize=1)
+def occupation_lists() -> OccupationLists:
+    """The lists and cues, read once per process."""
+    phrases = {ln.lower() for ln in _lines(FAKER_FILE) + _lines("occupations_extra.txt")}
+    heads = {p.split()[-1] for p in phrases}
+    cues: dict[str, list[str]] = {}
+    for line in _lines("occupation_cues.txt"):
+        kind, _, value = line.partition("\t")
+        cues.setdefault(kind.strip(), []).append(value.strip())
+
+    def compiled(kind: str) -> tuple[re.Pattern[str], ...]:
+        return tuple(re.compile(c, re.IGNORECASE) for c in cues.get(kind, []))
+
+    def words(kind: str) -> frozenset[str]:
+        return frozenset(w for c in cues.get(kind, []) for w in c.split("|"))
+
+    return OccupationLists(
+        frozenset(phrases), frozenset(heads), compiled("label"), compiled("work"), compiled("before"), compiled("after"),
+        compiled("block"), words("skip"), words("stop"), words("weak"),
+    )
+
+
+def derive_faker_occupations() -> list[str]:
+    """Occupation phrases from Faker's en_US job list, lower-cased and sorted.
+
+    Faker writes some titles inverted ("Engineer, civil (consulting)") or with
+    alternatives ("Ranger/warden"); we keep the part before the comma, drop
+    parentheses, split alternatives, and drop the list's truncated one-word
+    entries of four letters or fewer ("Copy", "Sub").
+    """
+    from faker.providers.job.en_US import Provider
+
+    out: set[str] = set()
+    for job in Provider.jobs:
+        head = re.sub(r"\([^)]*\)", "", job.split(",")[0]).strip().lower()
+        for alt in head.split("/"):
+            alt = " ".join(alt.split())
+            if alt and (" " in alt or len(alt) > 4):
+                out.add(alt)
+    return sorted(out)
+
+
+def write_faker_occupations() -> None:
+    """Regenerate ``deid/data/occupations_faker.txt`` from the installed Faker."""
+    import faker
+
+    header = (
+        f"# Occupations from Faker {faker.VERSION} (faker.providers.job.en_US.Provider.jobs, MIT licence),\n"
+        "# normalised by deid.detectors.professions.derive_faker_occupations; regenerate, do not edit.\n"
+    )
+    data_file(FAKER_FILE).write_text(header + "\n".join(derive_faker_occupations()) + "\n", encoding="utf-8")
+
+
+def _phrase_after(lists: OccupationLists, text: str, pos: int, kind: str) -> tuple[int, int] | None:
+    """Offsets of the occupation phrase starting at ``pos`` (None when there is none).
+
+    After a ``label`` cue every word counts (unlisted titles too); after a
+    ``work`` cue weak head words count.
+    """
+    any_words = kind == "label"
+    words: list[tuple[int, int]] = []
+    cur = pos
+    while len(words) < MAX_WORDS + 2:
+        m = _WORD.match(text, cur)
+        if m is None:
+            break
+        low = m.group().lower()
+        if low in lists.stop and not (any_words and words and low in _LABEL_JOINERS):
+            break
+        if not any_words and not (m.group().islower() or (not words and m.group()[1:].islower())):
+            break
+        words.append((m.start(), m.end()))
+        gap = re.match(r"[ \t]{1,2}(?=\S)", text[m.end() :])
+        if gap is None:
+            break
+        cur = m.end() + gap.end()
+    while words and text[words[0][0] : words[0][1]].lower() in lists.skip:
+        words.pop(0)
+    words = words[:MAX_WORDS]
+    if not words:
+        return None
+    if any_words:
+        return words[0][0], words[-1][1]
+    lowered = [text[s:e].lower() for s, e in words]
+    for n in range(len(words), 0, -1):
+        if lists.ends_occupation(lowered[:n], weak_ok=kind == "work"):
+            return words[0][0], words[n - 1][1]
+    return None
+
+
+def find_professions(text: str, lists: OccupationLists | None = None) -> list[tuple[int, int, float, str]]:
+    """``(start, end, score, rule)`` of every occupation shown by a cue in ``text``.
+
+    >>> [text[s:e] for text in ["Works as a bus driver."] for s, e, _, _ in find_professions(text)]
+    ['bus driver']
+    """
+    lists = lists or occupation_lists()
+    found: dict[tuple[int, int], tuple[float, str]] = {}
+
+    def add(span: tuple[int, int], kind: str) -> None:
+        if SCORES[kind] > found.get(span, (0.0, ""))[0]:
+            found[span] = (SCORES[kind], kind)
+
+    for kind, cues in (("label", lists.label_cues), ("work", lists.work_cues), ("before", lists.before_cues)):
+        for cue in cues:
+            for m in cue.finditer(text):
+                span = _phrase_after(lists, text, m.end(), kind)
+                if span is not None:
+                    add(span, kind)
+    for m in _WORD.finditer(text):
+        if m.group().lower() in lists.heads and any(c.match(text[m.end() :]) for c in lists.after_cues):
+            add((m.start(), m.end()), "after")
+    blocked = [(b.start(), b.end()) for p in lists.blocks for b in p.finditer(text)]
+    return sorted(
+        (s, e, score, kind) for (s, e), (score, kind) in found.items()
+        if not any(bs < e and s < be for bs, be in blocked)
+    )
+
+
+class ProfessionRecognizer(EntityRecognizer):
+    """Presidio recognizer ``professions.v1``: occupations after a work cue."""
+
+    ENTITIES: tuple[str, ...] = ("PROFESSION",)
+
+    def __init__(self) -> None:
+        super().__init__(supported_entities=list(self.ENTITIES), name=NAME, supported_language="en")
+
+    def load(self) -> None:
+        """Lists load lazily on first use (see :func:`occupation_lists`)."""
+
+    def analyze(
+        self, text: str, entities: list[str], nlp_artifacts: NlpArtifacts | None = None
+    ) -> list[RecognizerResult]:
+        """Every cued occupation in ``text``."""
+        if entities and "PROFESSION" not in entities:
+            return []
+        return [
+            RecognizerResult("PROFESSION", s, e, score, recognition_metadata={
+                RecognizerResult.RECOGNIZER_NAME_KEY: f"{NAME}/{rule}",
+                RecognizerResult.RECOGNIZER_IDENTIFIER_KEY: self.id,
+            })
+            for s, e, score, rule in find_professions(text)
+        ]

@@ -1,0 +1,65 @@
+"""deid.detectors.organizations: organisation and facility names by their last words."""
+
+from __future__ import annotations
+
+import re
+
+import pytest
+import simple_icd_10_cm as cm
+
+from deid.detectors import engine
+from deid.detectors.organizations import OrganizationRecognizer, find_organizations, org_lists
+
+
+def found(text: str) -> set[tuple[str, str]]:
+    doc = engine.get_engine().process_text(text, "en").tokens
+    return {(text[s:e], label) for s, e, label, _, _ in find_organizations(text, doc)}
+
+
+# Invented names. Legal-form suffixes (Inc., LLC, Corp.) are the standard US company
+# designators; departments alone are not identifiers (demo_notes/README.md conventions).
+CASES = [
+    ("Landscaping crew, Greenhaven Grounds LLC, since May.", {("Greenhaven Grounds LLC", "ORGANIZATION")}),
+    ("Works for Acme Widgets Inc. downtown.", {("Acme Widgets Inc.", "ORGANIZATION")}),
+    ("Primary ins Bluewick Health Plan BWH-77.", {("Bluewick Health Plan", "ORGANIZATION")}),
+    ("Machinist at Vellacott Paper Mill. Exam benign.", {("Vellacott Paper Mill", "ORGANIZATION")}),
+    ("Visiting from Our Lady of the Fells Convent daily.", {("Our Lady of the Fells Convent", "ORGANIZATION")}),
+    ("Die setter at Orrin Tool & Die for 20 years.", {("Orrin Tool & Die", "ORGANIZATION")}),
+    ("Fall at Greyhaven Senior Living this am.", {("Greyhaven Senior Living", "FACILITY")}),
+    ("SURGICAL PATHOLOGY DUNMARROW GENERAL HOSPITAL", {("DUNMARROW GENERAL HOSPITAL", "FACILITY")}),
+    ("Works at Marrowby Distribution Center.", {("Marrowby Distribution Center", "ORGANIZATION")}),
+    # generic names, departments, streets: nothing
+    ("EMERGENCY DEPARTMENT RECORD", set()),
+    ("Follow up in Internal Medicine Clinic.", set()),
+    ("Referred to Heart Failure Clinic.", set()),  # ICD-10-CM words only (I50.9 "Heart failure")
+    ("Admitted to Community Hospital.", set()),
+    ("Lives on Mill Race Road.", set()),
+    ("SpO2 96% on Room Air.", set()),
+]
+
+
+@pytest.mark.parametrize(("text", "expected"), CASES, ids=[c[0][:30] for c in CASES])
+def test_cases(text: str, expected: set[tuple[str, str]]) -> None:
+    assert found(text) == expected
+
+
+def test_acronym_of_a_found_name() -> None:
+    text = "Seen at Kestrel Bend Regional Medical Center. Follow-up at KBRMC in May."
+    assert ("KBRMC", "FACILITY") in found(text)
+
+
+def test_clinical_words_come_from_icd10cm() -> None:
+    # simple_icd_10_cm is the source; I50.9 is "Heart failure, unspecified" (ICD-10-CM).
+    words = set(re.findall(r"[a-z]+", cm.get_description("I50.9").lower()))
+    assert {"heart", "failure"} <= words
+    lists = org_lists()
+    assert lists.is_generic("Heart") and lists.is_generic("failure")
+    assert not lists.is_generic("Greenhaven")
+
+
+def test_recognizer_restricts_labels() -> None:
+    text = "Fall at Greyhaven Senior Living; works at Acme Widgets Inc."
+    nlp = engine.get_engine().process_text(text, "en")
+    results = OrganizationRecognizer().analyze(text, ["FACILITY"], nlp)
+    assert {text[r.start : r.end] for r in results} == {"Greyhaven Senior Living"}
+    assert results[0].recognition_metadata["recognizer_name"] == "organizations.v1/suffix"

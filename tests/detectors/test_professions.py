@@ -1,0 +1,71 @@
+"""deid.detectors.professions: occupations after a work cue, never staff roles alone."""
+
+from __future__ import annotations
+
+import pytest
+from faker.providers.job.en_US import Provider
+
+from deid.detectors.professions import ProfessionRecognizer, derive_faker_occupations, find_professions
+from deid.resources import data_file
+
+
+def found(text: str) -> set[str]:
+    return {text[s:e] for s, e, _, _ in find_professions(text)}
+
+
+# Invented sentences. Expected spans follow the gold conventions of demo_notes/README.md:
+# the occupation of the patient or a relative; status words ("retired") outside the span;
+# clinicians' roles in the care team are not labelled (common practice in de-identification).
+CASES = [
+    ("Works as a bus driver for the county.", {"bus driver"}),
+    ("Employed as a barista at a cafe.", {"barista"}),
+    ("Return to work as mail carrier in 2 wks.", {"mail carrier"}),
+    ("Works night shift as security guard at the depot.", {"security guard"}),
+    ("Pt is a taxi driver; off driving 6 weeks.", {"taxi driver"}),
+    ("This 67-year-old retired civil engineer moved here.", {"civil engineer"}),
+    ("Social: retired secondary school headmistress, emigrated 1994.", {"secondary school headmistress"}),
+    ("Pt Ann Roe, 44M, line cook at a diner.", {"line cook"}),
+    ("31F paramedic (works county EMS).", {"paramedic"}),
+    ("Roe, Ann (DOB 1/2/1950), 66, nail technician. Exam benign.", {"nail technician"}),
+    ("Jan is a 59 y/o long-distance bus driver admitted with DKA.", {"long-distance bus driver"}),
+    ("Requests letter for her flight attendant employer.", {"flight attendant"}),
+    ("Wife, a retired teacher, at bedside.", {"teacher"}),
+    ("He is a welder by trade.", {"welder"}),
+    ("Occupation: Director of Nursing at a care home", {"Director of Nursing"}),
+    ("Works as a sales associate.", {"sales associate"}),  # a weak head after a work verb
+    ("33M, nurse (off duty) at the scene.", {"nurse"}),  # a clinician's job, but the patient's
+    # staff roles and look-alikes: nothing
+    ("Discussed with the nurse and the surgeon.", set()),
+    ("Patient is a poor historian.", set()),
+    ("She is a heterozygous carrier of sickle trait.", set()),
+    ("He was a restrained driver in the MVC.", set()),
+    ("45M, patient presents with chest pain.", set()),
+    ("Seen by physician assistant on call.", set()),
+]
+
+
+@pytest.mark.parametrize(("text", "expected"), CASES, ids=[c[0][:30] for c in CASES])
+def test_cases(text: str, expected: set[str]) -> None:
+    assert found(text) == expected
+
+
+def test_faker_list_is_derived_from_faker() -> None:
+    # Faker's en_US job provider is the open source of the list (MIT licence).
+    derived = derive_faker_occupations()
+    assert "barista" in derived and "civil engineer" in derived  # "Barista", "Civil engineer" in Faker
+    assert "engineer" in derived  # "Engineer, civil (consulting)" -> part before the comma
+    assert "sub" not in derived and "copy" not in derived  # truncated one-word entries dropped
+    assert len(derived) <= len(Provider.jobs) + 20  # "/" alternatives add a few at most
+
+
+def test_cached_list_matches_installed_faker() -> None:
+    lines = data_file("occupations_faker.txt").read_text(encoding="utf-8").splitlines()
+    assert [ln for ln in lines if not ln.startswith("#")] == derive_faker_occupations()
+
+
+def test_recognizer_metadata_and_entities() -> None:
+    text = "Works as a welder."
+    results = ProfessionRecognizer().analyze(text, [], None)
+    assert [(text[r.start : r.end], r.entity_type) for r in results] == [("welder", "PROFESSION")]
+    assert results[0].recognition_metadata["recognizer_name"] == "professions.v1/work"
+    assert ProfessionRecognizer().analyze(text, ["NAME"], None) == []
