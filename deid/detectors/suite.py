@@ -10,7 +10,8 @@ resolution merges those in.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections import defaultdict
+from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -21,7 +22,9 @@ from deid.policy import Policy
 from deid.registry import detectors
 
 #: Recognizers run inside the Presidio analyzer, by registered name.
-DEFAULT_RECOGNIZERS = ("regex.v1", "names.v1", "name_lists.v1", "spacy_ner.v1", "gazetteer.v1")
+DEFAULT_RECOGNIZERS = (
+    "regex.v1", "names.v1", "name_lists.v1", "spacy_ner.v1", "gazetteer.v1", "organizations.v1", "professions.v1"
+)
 #: Suppressors applied after resolution, by registered name.
 DEFAULT_SUPPRESSORS = ("clinical_numbers.v1", "eponyms.v1")
 
@@ -37,21 +40,25 @@ class DetectionSuite:
     propagate: bool = True
 
     def detect_note(self, note: Note, nlp: object) -> list[Span]:
-        """Resolved spans of one note."""
-        from deid.detectors.propagate import propagate
-
+        """Resolved spans of one note, before propagation."""
         candidates = list(self.analyzer.detect(note, nlp))  # type: ignore[arg-type]
         for det in self.extra:
             candidates.extend(det.detect(note, nlp))  # type: ignore[arg-type]
-        spans = resolve(note, candidates, self.precedence, self.suppressors)
-        if self.propagate:
-            more = propagate(note, spans)
-            if more:
-                spans = resolve(note, [*spans, *more], self.precedence, self.suppressors)
-        return spans
+        return resolve(note, candidates, self.precedence, self.suppressors)
+
+    def spread(self, note: Note, spans: list[Span], extra_values: Iterable[tuple[str, str]] = ()) -> list[Span]:
+        """Add every other mention of what was found in this note or in ``extra_values``."""
+        from deid.detectors.propagate import propagate
+
+        more = propagate(note, spans, extra_values)
+        return resolve(note, [*spans, *more], self.precedence, self.suppressors) if more else spans
 
     def detect_batch(self, notes: Sequence[Note]) -> list[list[Span] | Exception]:
-        """Resolved spans per note; a note whose detection failed gets the exception instead."""
+        """Resolved spans per note; a note whose detection failed gets the exception instead.
+
+        Propagation also carries what was found in one note to the same patient's
+        other notes in the batch (across batches, pass a roster).
+        """
         if not notes:
             return []
         artifacts = self.analyzer.analyze_batch([n.text for n in notes])  # type: ignore[attr-defined]
@@ -61,6 +68,19 @@ class DetectionSuite:
                 out.append(self.detect_note(note, nlp))
             except Exception as exc:  # noqa: BLE001 - reported as a reject by the pipeline
                 out.append(exc)
+        if not self.propagate:
+            return out
+        found: dict[str, set[tuple[str, str]]] = defaultdict(set)
+        for note, spans in zip(notes, out, strict=True):
+            if note.patient_id and not isinstance(spans, Exception):
+                found[note.patient_id].update((s.label, s.text_in(note)) for s in spans)
+        for i, (note, spans) in enumerate(zip(notes, out, strict=True)):
+            if isinstance(spans, Exception):
+                continue
+            try:
+                out[i] = self.spread(note, spans, sorted(found.get(note.patient_id or "", ())))
+            except Exception as exc:  # noqa: BLE001
+                out[i] = exc
         return out
 
 
