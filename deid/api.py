@@ -122,7 +122,7 @@ def _process(
     summary.seconds = time.monotonic() - started
     summary.files = {"spans": spans_path, "rejects": out_dir / "rejects.jsonl"}
     if writer is not None:
-        summary.files["notes"] = Path(getattr(writer, "path", out_dir))
+        summary.files["notes"] = Path(writer.path)
     return summary
 
 

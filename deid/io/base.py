@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from collections.abc import Iterator, Mapping
 from dataclasses import dataclass
+from pathlib import Path
 from typing import Protocol
 
 from deid.errors import NoteRejected
@@ -64,9 +65,15 @@ class NoteReader(Protocol):
 
 
 class NoteWriter(Protocol):
-    """Writes de-identified notes in one output format, one batch at a time."""
+    """Writes de-identified notes in one output format, one batch at a time.
+
+    Attributes:
+        format: Registered name of the format.
+        path: The file (or folder) the notes go to.
+    """
 
     format: str
+    path: Path
 
     def write(self, notes: list[Note]) -> None: ...
 

@@ -31,12 +31,13 @@ Decisions (documented because a reader cannot guess them):
 from __future__ import annotations
 
 import datetime as dt
+from collections.abc import Callable
 from dataclasses import dataclass, replace
 
 from deid.operators.date_words import DIGITS, EDGES, NUM2, NUM3, TIME, WEEKDAY, WORDS, WRITTEN
 
 NO_REFERENCE_YEAR = 2000
-_CASES = {"title": str, "upper": str.upper, "lower": str.lower}
+_CASES: dict[str, Callable[[str], str]] = {"title": str, "upper": str.upper, "lower": str.lower}
 
 
 @dataclass(frozen=True)
@@ -205,7 +206,8 @@ def _build(order: str, seps: tuple[str, ...], reference: dt.date | None, y: str 
 
 def _numeric(core: str, reference: dt.date | None) -> tuple[dt.date, DateFormat] | None:
     if (n := NUM3.fullmatch(core)) is not None:
-        a, b, c, seps = n["a"], n["b"], n["c"], (n["s1"], n["s2"])
+        a, b, c = n["a"], n["b"], n["c"]
+        seps: tuple[str, ...] = (n["s1"], n["s2"])
         if len(a) == 4 and len(c) <= 2:
             return _build("YMD", seps, reference, y=a, m=b, d=c)
         if len(a) <= 2 and len(c) in (2, 4):
