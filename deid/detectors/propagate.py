@@ -22,7 +22,7 @@ from collections.abc import Iterable, Sequence
 
 from deid.detectors.base import source_name
 from deid.detectors.name_lists import is_common_word, is_english_word, is_first_name, is_last_name
-from deid.detectors.names import default_triggers
+from deid.detectors.name_triggers import case_mode, default_triggers, line_mode, name_before, walk_name
 from deid.model import Note, Span
 
 NAME = "propagate.v1"
@@ -60,23 +60,31 @@ def _name_word_ok(word: str) -> bool:
         return False
     low = word.lower()
     triggers = default_triggers()
-    if low in triggers.stop_words or low in triggers.cue_words:
+    if low in triggers.stop_words or low in triggers.cue_words or low in triggers.credentials:
         return False
+    if letters.isupper() and len(letters) <= 3 and (is_common_word(word) or not is_last_name(word)):
+        return False  # "CP", "MRN": a short capital word is an abbreviation unless a listed surname
     census = is_first_name(word) or is_last_name(word)
     return census or not is_english_word(word)
 
 
 def _name_entries(value: str, score: float) -> list[Entry]:
-    words = [w for w in re.split(r"[\s,]+", value.strip()) if w]
+    # Quotes and brackets of a nickname ('Clarence "Bud" Whitfield') are not part of a word.
+    words = [w.strip('"“”()') for w in re.split(r"[\s,]+", value.strip()) if w.strip('"“”()')]
     # A one-word name goes through the word checks below like any other word.
     full = [(flex_pattern(" ".join(words)), False, "NAME", score, len(value))] if len(words) > 1 else []
     entries: list[Entry] = full
-    plain = [w for w in words if not w.endswith(".") and len(w) > 1]
+    t = default_triggers()
+    # Titles and credentials ("Dr", "PA-C") travel with a name but are not part of it.
+    plain = [
+        w for w in words if not w.endswith(".") and len(w) > 1 and w.lower() not in t.credentials | t.titles
+    ]
     for w in plain:
         if not _name_word_ok(w):
             continue
-        if is_common_word(w):  # "Grant": capitalised or capitals only
-            for form in {w[0].upper() + w[1:].lower(), w.upper()}:
+        if is_common_word(w) or is_english_word(w) and not is_first_name(w):
+            # "Grant", "Reader": an everyday word is matched capitalised or in capitals only
+            for form in {w, w[0].upper() + w[1:].lower(), w.upper()} - {w.lower()}:
                 entries.append((flex_pattern(form), True, "NAME", score * 0.9, len(w)))
         else:
             entries.append((flex_pattern(w), False, "NAME", score * 0.95, len(w)))
@@ -139,8 +147,9 @@ def propagate(note: Note, spans: Sequence[Span], extra_values: Iterable[tuple[st
             if key not in entries or entries[key][1] < sc:
                 entries[key] = (lab, sc)
                 order[key] = max(order.get(key, 0), size)
+    listed = continue_lists(note, spans)
     if not entries:
-        return []
+        return listed
     keys = sorted(entries, key=lambda k: (-order[k], k))
     pattern = compile_alternation(keys)
     covered = sorted((s.start, s.end) for s in spans)
@@ -151,7 +160,47 @@ def propagate(note: Note, spans: Sequence[Span], extra_values: Iterable[tuple[st
             continue
         label, score = entries[keys[(m.lastindex or 1) - 1]]
         found.append(Span(m.start(), m.end(), label, score, source_name(NAME, label)))
-    return found
+    return sorted(
+        [*found, *(s for s in listed if not any(f.start < s.end and s.start < f.end for f in found))]
+    )
+
+
+_AFTER = re.compile(r"[ \t]*(?:(?P<comma>,)|/|&|\band\b)[ \t]*", re.IGNORECASE)
+_BEFORE = re.compile(r"(?:/|&|\band)[ \t]*$", re.IGNORECASE)
+
+
+def continue_lists(note: Note, spans: Sequence[Span]) -> list[Span]:
+    """Names joined to a found name: "T. Wróbel/ Ana Popescu", "Drs. Lee and Okafor", "Ann Lee, B. Chen".
+
+    The neighbour is read with the same rules as a name after a strong cue
+    (census or non-English words, in the case habit of the found name). After
+    a comma it needs two words or an initial, since "Ann Lee, Kestrel" may be a place.
+    """
+    text, t = note.text, default_triggers()
+    out: list[Span] = []
+    for span in spans:
+        if span.label != "NAME":
+            continue
+        value = text[span.start : span.end]
+        mode = case_mode(value) if case_mode(value) != "mixed" else line_mode(text, span.start)
+        m = _AFTER.match(text, span.end)
+        if m is not None:
+            end = walk_name(text, m.end(), mode, "strong", t)
+            words = text[m.end() : end].split()
+            if (
+                end > m.end()
+                and words[0].lower() not in t.credentials
+                and (not m.group("comma") or len(words) > 1 or words[0].endswith("."))
+            ):
+                out.append(Span(m.end(), end, "NAME", span.score * 0.9, source_name(NAME, "NAME")))
+        b = _BEFORE.search(text, max(0, span.start - 8), span.start)
+        if b is not None:
+            start = name_before(text, b.start(), mode, t)
+            if start < b.start():
+                end = len(text[: b.start()].rstrip(" \t"))
+                out.append(Span(start, end, "NAME", span.score * 0.9, source_name(NAME, "NAME")))
+    covered = [(s.start, s.end) for s in spans]
+    return [s for s in out if not any(a <= s.start and s.end <= b for a, b in covered)]
 
 
 def compile_alternation(items: Sequence[tuple[str, bool]]) -> re.Pattern[str]:

@@ -6,8 +6,10 @@ from pathlib import Path
 
 import pytest
 
+from deid.detectors.name_triggers import accept_word, default_triggers, walk_name
 from deid.detectors.names import NameTriggerRecognizer, find_names, load_triggers
 from deid.errors import ConfigError
+from deid.resources import data_file
 
 
 def _names(text: str) -> list[str]:
@@ -40,6 +42,41 @@ RECALL = [
     ("Referred to Cardiology. Called Smith back.", ["Smith"]),
     ("attending: dr. patel", ["patel"]),
     ("d/w Dr.Smith's team", ["Smith"]),
+    # Everyday first names shown by what follows a relation: "will to", "joy waited" (common practice).
+    ("Asked for son bob to be paged.", ["bob"]),
+    ("pt comfortable, husband joy waited outside.", ["joy"]),
+    ("Ms Will called back.", ["Will"]),  # a capitalised stop word after a title
+    ("Mother (April Rose) at bedside.", ["April Rose"]),
+    ("Her partner\nSiddharth will bring the forms.", ["Siddharth"]),  # relation ends a line
+    ("Seen with mother. Grandma Yetunde at bedside.", ["Yetunde"]),
+    ("Brought in by grandson (Tobias).", ["Tobias"]),
+    # Reversed order after a cue, and nicknames inside or after the name.
+    ("Re: Mrs. Abernathy-Osei, Folasade  ref no. 1123", ["Abernathy-Osei, Folasade"]),
+    ("Patient: TRAN, VAN MINH   Acct: 22", ["TRAN, VAN MINH"]),
+    ('Brief note\nName Ottoline "Tilly" Brandvold. Fall at home.', ['Ottoline "Tilly" Brandvold']),
+    # The patient in running text.
+    ("f/u note\npt ifeanyi okorie here with wife", ["ifeanyi okorie"]),
+    ("Pt Winifred Ashdown-Kiri called about results", ["Winifred Ashdown-Kiri"]),
+    # A name before demographics or a record number.
+    ("NEUROLOGY CONSULT 04.05.2020\nGRACE HILL 71F (8812345) new L weakness", ["GRACE HILL"]),
+    ("Walk-in 02:10\nDawn Summer, 34F, brought by roommate", ["Dawn Summer"]),
+    ('Lines: Ottoline Brandvold ("Tilly"), 77F, retired', ['Ottoline Brandvold ("Tilly")']),
+    ('Sports med. Bartholomew "Bart" Quennell, 19, swimmer', ['Bartholomew "Bart" Quennell']),
+    ("OB visit - Aoife Ní Dhomhnaill, 29F, G2P1", ["Aoife Ní Dhomhnaill"]),
+    ("Ward clerk note\nsigrun haldorsdottir  8823341  80F", ["sigrun haldorsdottir"]),
+    ('Thoracic clinic\nMikael (pronounced "Mee-ka-el") is a 61 yo baker', ["Mikael"]),
+    # Signers ending a line, initials after a role, a bracketed name after a credential.
+    ("wound clean and dry. - ql\n", ["ql"]),
+    ("Stable overnight. - Okoro-Banjo\n", ["Okoro-Banjo"]),
+    ("Thanks. 2/4 jmk", ["jmk"]),
+    ("Afebrile overnight.\nTolerating diet. Okoye", ["Okoye"]),
+    ("Cytotechnologist RM; pathologist reviewed.", ["RM"]),
+    ("BP 130/80 - RN (ifeoma) notified", ["ifeoma"]),
+    ("JT / Jonah Tarrant MD", ["JT", "Jonah Tarrant"]),
+    ("call light in reach. april rn", ["april"]),
+    # Lists after a title or a copy line.
+    ("Drs. Lee and Okafor agree.", ["Lee", "Okafor"]),
+    ("Dr. Lee, Oncology and Dr. Yetunde Balogun, Wrenfield Clinic", ["Lee", "Yetunde Balogun"]),
 ]
 
 
@@ -64,6 +101,31 @@ PRECISION = [
     "PT TO WORK WITH PT DAILY",
     "Pain, nausea, vomiting.",
     "Patient is a resident of the county.",
+    # Cues whose next word is no name (common practice): abbreviations, languages, clinical words.
+    "History: COPD, 72M, former miner.",
+    "CC: GSW L thigh.",
+    "pt c/o SOB and CP since am.",
+    "Treated per IDSA guidelines.",
+    "Cirrhosis Child-Pugh A. Child A cirrhosis.",
+    "Mother has DM2. Father: MI at 60.",
+    "Interpreter: Spanish. Interpreter used (Spanish).",
+    "Patient: see above.",
+    "pt NPO after midnight. Pt NPO. pt afebrile overnight.",
+    "Emergency contact: daughter. Emergency contact on file.",
+    "Son will drive her home. Wife will call back. Daughter may visit tomorrow.",
+    "Lantern Hill Dr\nGreyhaven, KY",  # a street's "Dr" before a town on the next line
+    # Line ends that are no signature, and demographics without a name.
+    "IV abx started. - cont",
+    "Pain 7/10 - ok",
+    "Heparin 5000 units sc",
+    "CYTOLOGY - GYN",
+    "Follow up in 2 wks. - Cardiology",
+    "Pleasant 45F in NAD. Obese 60M with HTN.",
+    "GCS 15. CHA2DS2-VASc 3, HAS-BLED 2.",
+    "Omnipaque 180, 1 mL injected.",
+    "Peds well-child 4 yr, 5/5/21.",
+    "Tech ID 445. Reader 1 reviewed.",
+    "MD (on call) aware. Nurse (night) aware.",
 ]
 
 
@@ -86,4 +148,41 @@ def test_bad_trigger_file_names_file_and_key(tmp_path: Path) -> None:
     bad = tmp_path / "triggers.yaml"
     bad.write_text("titles: [dr]\n", encoding="utf-8")
     with pytest.raises(ConfigError, match=r"triggers\.yaml: key 'credentials'"):
+        load_triggers(bad)
+
+
+@pytest.mark.parametrize(
+    ("text", "expected"),
+    [
+        # One reversed comma after a single surname; a list of people stays two names (common practice).
+        ("Mrs. Abernathy-Osei, Folasade today", "Abernathy-Osei, Folasade"),
+        ("Dr. Ann Lee, Bo Chen", "Ann Lee"),
+        ("Dr. Quimby, MD", "Quimby"),
+        ('Mr. Harold "Hal" Quimby', 'Harold "Hal" Quimby'),
+        ("Dr. Ngozi-Ekwueme, Chukwudi  NHS no. 1", "Ngozi-Ekwueme, Chukwudi"),
+    ],
+)
+def test_walk_name_reversed_and_nicknames(text: str, expected: str) -> None:
+    start = text.index(".") + 2
+    assert text[start : walk_name(text, start, "mixed", "title")] == expected
+
+
+def test_accept_word_case_habits() -> None:
+    t = default_triggers()
+    # After a title in mixed writing any capitalised word is a name, a lower-case one is not.
+    assert accept_word("Okafor", "mixed", "title", False, t)
+    assert not accept_word("said", "mixed", "title", False, t)
+    # A capitalised first name that is also a stop word counts after a title only.
+    assert accept_word("May", "mixed", "title", False, t)
+    assert not accept_word("May", "mixed", "weak", False, t)
+    # Lower-case writing: an everyday word opens no name, a census surname does.
+    assert not accept_word("see", "lower", "label", False, t)
+    assert accept_word("patel", "lower", "label", False, t)
+
+
+def test_new_trigger_keys_are_required(tmp_path: Path) -> None:
+    text = data_file("name_triggers.yaml").read_text(encoding="utf-8")
+    bad = tmp_path / "triggers.yaml"
+    bad.write_text(text.replace("signature_non_names:", "unused_key:"), encoding="utf-8")
+    with pytest.raises(ConfigError, match=r"key 'signature_non_names'"):
         load_triggers(bad)

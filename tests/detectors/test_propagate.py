@@ -77,3 +77,36 @@ def test_address_value() -> None:
     text = "Lives at 12 Elm Street. Mail to 12 elm street please."
     got = _found(text, [_span(text, "12 Elm Street", "STREET")])
     assert got == [("12 elm street", "propagate.v1/STREET")]
+
+
+@pytest.mark.parametrize(
+    ("text", "seed", "expected"),
+    [
+        # Invented names. A neighbour joined by "/", "and", "&" (common practice).
+        ("Plan per T. Wrenhaven/ Ana-Lucia Popescu (PGY2)", "Ana-Lucia Popescu", ["T. Wrenhaven"]),
+        ("Seen by Dr. Lee and Okafor today.", "Lee", ["Okafor"]),
+        ("cc Ann Lee, B. Chen", "Ann Lee", ["B. Chen"]),
+        # After a comma one capitalised word may be a place, and a credential is no name.
+        ("Dr. Ann Lee, Kestrelford", "Ann Lee", []),
+        ("Ann Lee, MD and Cardiology", "Ann Lee", []),
+        ("Beatrix Moll, CNM / Marcus Oyelaran, MD", "Marcus Oyelaran", []),
+    ],
+)
+def test_list_continuation(text: str, seed: str, expected: list[str]) -> None:
+    got = _found(text, [_span(text, seed, "NAME")])
+    assert [g[0] for g in got] == expected
+    assert all(source == "propagate.v1/NAME" for _, source in got)
+
+
+def test_everyday_english_surname_matched_capitalised_only() -> None:
+    # "Reader" is a census surname and an English word: the lower-case noun is not a mention.
+    text = "Seen by Dr. Reader. The reader agreed; Reader signed."
+    got = [g[0] for g in _found(text, [_span(text, "Reader", "NAME")])]
+    assert got == ["Reader"]
+
+
+def test_titles_credentials_and_nickname_quotes_are_not_name_words() -> None:
+    text = 'Guy Marchetti, PA-C saw her. PA-C to follow. Clarence "Bud" Whitfield here; Bud agreed.'
+    spans = [_span(text, "Guy Marchetti, PA-C", "NAME"), _span(text, 'Clarence "Bud" Whitfield', "NAME")]
+    got = [g[0] for g in _found(text, spans)]
+    assert got == ["Bud"]
