@@ -6,7 +6,7 @@ there is no generator. Outputs, rewritten on every run: ``gold.jsonl``
 (note_id, patient_id, note_date, text, spans), ``notes.jsonl`` (without spans)
 and ``manifest.csv``.
 
-Run:  PYTHONPATH=/work/main python tests/corpora/heldout/build.py [--strict]
+Run:  PYTHONPATH=/work/main python tests/corpora/dev_b/build.py [--strict]
 """
 
 from __future__ import annotations
