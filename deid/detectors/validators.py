@@ -102,6 +102,25 @@ def aba(text: str) -> bool:
     return sum(int(c) * w for c, w in zip(digits, weights, strict=True)) % 10 == 0
 
 
+def nhs(text: str) -> bool:
+    """NHS number (England, Wales, Isle of Man): ten digits, modulus 11.
+
+    Weights 10 down to 2 over the first nine digits; ``11 - sum % 11`` is the
+    check digit, 11 reads as 0 and 10 means the number is invalid (NHS Data
+    Dictionary, "NHS number" format).
+
+    >>> nhs("943 476 5919")
+    True
+    """
+    digits = _clean(text)
+    if len(digits) != 10 or not digits.isdigit():
+        return False
+    check = 11 - sum(int(c) * w for c, w in zip(digits[:9], range(10, 1, -1), strict=True)) % 11
+    if check == 11:
+        check = 0
+    return check != 10 and check == int(digits[9])
+
+
 #: Name -> validator, as written in a pattern file's ``validator`` key.
 VALIDATORS: dict[str, Callable[[str], bool]] = {
     "luhn": luhn,
@@ -109,4 +128,5 @@ VALIDATORS: dict[str, Callable[[str], bool]] = {
     "dea": dea,
     "vin": vin,
     "aba": aba,
+    "nhs": nhs,
 }

@@ -106,11 +106,15 @@ def test_ip_examples_are_valid_addresses(entry: str, value: str) -> None:
 
 
 # The phonenumbers library (libphonenumber metadata) must read every marked phone or fax
-# of ten or more digits as a possible number (US default region; shorter ones are local/pager numbers).
+# of ten or more digits as a possible number (US default region, GB for numbers written with a
+# national trunk 0; shorter ones are local/pager numbers).
 @pytest.mark.parametrize(("entry", "value"), [(n, v) for lab in ("PHONE", "FAX") for n, v in _marked(lab)
                                               if sum(c.isdigit() for c in v) >= 10])
 def test_phone_examples_are_possible_numbers(entry: str, value: str) -> None:
-    assert phonenumbers.is_possible_number(phonenumbers.parse(value, "US"))
+    region = "GB" if value.lstrip("(").startswith("0") else "US"
+    # NOTE: "^" is the HL7 v2 component separator (area^local^extension); read it as written out.
+    number = phonenumbers.parse(value.replace("^", " ", 1).replace("^", " ext. "), region)
+    assert phonenumbers.is_possible_number(number)
 
 
 # python-dateutil must parse every marked DATE that names a month or has a full numeric form
@@ -128,3 +132,51 @@ def test_find_all_merges_regexes_and_drops_repeats() -> None:
     spec = SPECS["ipv6_address"]
     assert find_all(spec, "a ::1 b") == [(2, 5)]
     assert find_all(spec, "none here") == []
+
+
+# Python's datetime (proleptic Gregorian calendar) must accept the date part of every
+# compact timestamp the examples mark (HL7 v2 / ISO 8601 basic form YYYYMMDD[HHMM[SS]]).
+@pytest.mark.parametrize(("entry", "value"), [(n, v) for n, v in _marked("DATE") if n == "date_compact_stamp"])
+def test_compact_stamp_examples_are_calendar_dates(entry: str, value: str) -> None:
+    import datetime as dt
+
+    dt.datetime.strptime(value[:8], "%Y%m%d")
+    if len(value) >= 12 and value[8:12].isdigit():
+        dt.datetime.strptime(value[8:12], "%H%M")
+
+
+# Clinical look-alikes (common practice): after the clinical_numbers.v1 veto, no pattern
+# entry may leave a span on these lines. Each line mixes shapes a date, age, phone, ZIP,
+# street or id entry could confuse.
+_LOOKALIKES = [
+    "BP 120/80, HR 72, RR 18, T 98.6 F, SpO2 95% on RA.",
+    "Strength 5/5 throughout, 4/5 left grip. Grade 2/6 systolic murmur.",
+    "MoCA 19/30, MMSE 24/30, PHQ-9 12, GAD-7 8.",
+    "Metoprolol 25 mg bid, lisinopril 10 mg daily, insulin 12 units.",
+    "Given at 14:30, repeat at 0600. Lesion at 3 o'clock.",
+    "Diagnosed in 2019. CABG 2015. Ratio 1:100, titer 1:160.",
+    "Disc bulge at L4-L5, C5-6 stenosis, T12 fracture.",
+    "Visual acuity 20/25 OD, 20/40 OS. Pain 7/10 at rest.",
+    "Weight 92 kg, height 170 cm. 67 yo man. 89F with COPD.",
+    "HR 92, sats 94%, pulse 101. Temp 100.4 F max; 101 F overnight.",
+    "Stage T2N1M0 cancer; G2P1 at 39 weeks. CHA2DS2-VASc 3.",
+    "Platelets 150000; vitamin D 50000 IU weekly.",
+    "Hep B vaccine series 1/3, 2/3, 3/3. 2/2 blood cultures positive.",
+    "Patient is 97% adherent; he is 92 kg; she is 95 lbs.",
+    "Lives on disability; flat affect; 2 units PRBC; suite of tests.",
+    "L5 S1 disc; T2 weighted MRI; documented in MAR; dec BS at bases.",
+    "f/u apt 2 weeks; RR 2 breaths above baseline; lots of questions.",
+]
+
+
+@pytest.mark.parametrize("text", _LOOKALIKES)
+def test_clinical_lookalikes_leave_no_span(text: str) -> None:
+    from deid.detectors.clinical_numbers import make_clinical_numbers
+    from deid.model import Note, Span
+
+    suppressor = make_clinical_numbers()
+    note = Note("n1", text, patient_id="p1")
+    left = [(spec.name, text[s:e]) for spec in SPECS.values() for s, e in find_all(spec, text)
+            if spec.label not in {"FACILITY", "NAME", "ORGANIZATION", "PROFESSION"}
+            and not suppressor.suppresses(note, Span(s, e, spec.label, spec.score, "regex.v1/t"))]
+    assert left == []

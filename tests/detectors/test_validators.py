@@ -4,9 +4,10 @@ from __future__ import annotations
 
 import pytest
 from stdnum import luhn as stdnum_luhn
+from stdnum.gb import nhs as stdnum_nhs
 from stdnum.us import rtn as stdnum_rtn
 
-from deid.detectors.validators import VALIDATORS, aba, dea, luhn, npi, vin
+from deid.detectors.validators import VALIDATORS, aba, dea, luhn, nhs, npi, vin
 
 
 # Source: CMS, "Requirements for National Provider Identifier (NPI) and NPI Enumeration"
@@ -67,12 +68,29 @@ def test_aba_matches_stdnum(number: str) -> None:
     assert aba(number) is stdnum_rtn.is_valid(number)
 
 
+# Cross-check against python-stdnum's NHS number check (stdnum.gb.nhs, modulus 11).
+@pytest.mark.parametrize("number", [
+    "9434765919", "9434765918", "4010232137", "4010232138", "1234567881", "1234567890",
+    "0000000000", "6660000000", "7000000001", "943476591",
+])
+def test_nhs_matches_stdnum(number: str) -> None:
+    assert nhs(number) is stdnum_nhs.is_valid(number)
+
+
+def test_nhs_check_ten_is_invalid() -> None:
+    # NHS Data Dictionary rule: a check value of 10 means no valid number. For the first nine
+    # digits 000000006 the weighted sum is 2*6 = 12, 12 % 11 = 1, 11 - 1 = 10 (arithmetic shown).
+    assert not any(nhs(f"000000006{d}") for d in "0123456789")
+    assert not any(stdnum_nhs.is_valid(f"000000006{d}") for d in "0123456789")
+
+
 def test_separators_are_ignored() -> None:
     assert luhn("4111-1111 1111.1111")
     assert npi("123-456-7893")
+    assert nhs("943 476 5919")
 
 
 def test_table_names() -> None:
     # The names pattern files may use in their `validator` key.
-    assert set(VALIDATORS) == {"luhn", "npi", "dea", "vin", "aba"}
+    assert set(VALIDATORS) == {"luhn", "npi", "dea", "vin", "aba", "nhs"}
     assert all(VALIDATORS[name]("x") is False for name in VALIDATORS)
