@@ -41,11 +41,36 @@ def fresh_tldextract(monkeypatch: pytest.MonkeyPatch, tmp_path: object) -> None:
     monkeypatch.delenv("TLDEXTRACT_PUBLIC_SUFFIX_LIST_URLS", raising=False)
 
 
-def test_guard_detects_a_fetch(no_network: list[tuple[object, ...]], fresh_tldextract: None) -> None:
-    # Control: without make_offline, tldextract 5.4 tries to download the Public
-    # Suffix List on first use, so the guard above really can fail.
-    tldextract.extract("forums.bbc.co.uk")
-    assert no_network, "expected the unpatched tldextract to attempt a connection"
+_PROBE = """
+import os, socket, sys, tempfile
+attempts = []
+def refuse(*a, **k):
+    attempts.append(1)
+    raise OSError("network disabled in tests")
+socket.socket.connect = socket.create_connection = socket.getaddrinfo = refuse
+if sys.argv[1] == "offline":
+    from deid import offline
+    offline.make_offline()
+import tldextract
+tldextract.extract("forums.bbc.co.uk")
+print(len(attempts))
+"""
+
+
+@pytest.mark.parametrize(("mode", "expect_fetch"), [("plain", True), ("offline", False)])
+def test_guard_detects_a_fetch_and_make_offline_prevents_it(mode: str, expect_fetch: bool) -> None:
+    # Control and treatment in fresh interpreters (no state left by other tests): without
+    # make_offline, tldextract 5.x tries to download the Public Suffix List on first use, so the
+    # socket guard really can fail; with it, no connection is attempted.
+    import os
+    import subprocess
+    import sys
+
+    env = {k: v for k, v in os.environ.items() if not k.startswith("TLDEXTRACT")}
+    env["TLDEXTRACT_CACHE"] = os.path.join(os.environ.get("TMPDIR", "/tmp"), f"chartveil-tld-{os.getpid()}-{mode}")
+    out = subprocess.run([sys.executable, "-c", _PROBE, mode], capture_output=True, text=True, env=env, check=True)
+    attempts = int(out.stdout.strip().splitlines()[-1])
+    assert (attempts > 0) is expect_fetch
 
 
 def test_make_offline_is_idempotent(fresh_tldextract: None) -> None:
