@@ -17,6 +17,7 @@ cheap and cached; the surrogate operator and :mod:`deid.detectors.names` use the
 from __future__ import annotations
 
 import re
+import unicodedata
 from collections.abc import Iterator
 from functools import lru_cache
 from pathlib import Path
@@ -77,23 +78,49 @@ def census() -> tuple[Frequencies, Frequencies, Frequencies]:
     )
 
 
-def _key(token: str) -> str:
-    # Census entries are plain A-Z: "O'Neill" is ONEILL, accents are dropped.
-    return re.sub(r"[^A-Z]", "", token.upper().replace("É", "E").replace("Í", "I").replace("Á", "A"))
+_FOLD = str.maketrans(
+    {"ß": "ss", "ł": "l", "Ł": "L", "ø": "o", "Ø": "O", "đ": "d", "Đ": "D", "ı": "i", "ð": "d", "Ð": "D"}
+    | {"þ": "th", "Þ": "Th", "æ": "ae", "Æ": "Ae", "œ": "oe", "Œ": "Oe"}
+)
+
+
+def name_key(token: str) -> str:
+    """Census-style key: "O'Neill" is ONEILL, "Szabó" is SZABO, "Łukasz" is LUKASZ (accents folded)."""
+    folded = unicodedata.normalize("NFKD", token.translate(_FOLD))
+    return re.sub(r"[^A-Z]", "", folded.upper())
+
+
+_key = name_key
+
+
+@lru_cache(maxsize=1)
+def world_names() -> tuple[frozenset[str], frozenset[str]]:
+    """(first, last) name keys of many countries: ``name_first_world.txt``, ``name_last_world.txt``.
+
+    The 1990 US Census lists are Anglo-heavy; these files add the person-name
+    lists of faker's non-US locales (see :func:`derive_world_names`), so that
+    "Siosaia", "Wierzbicki" or "Haruto" count like a census name.
+    """
+    out = []
+    for name in ("name_first_world.txt", "name_last_world.txt"):
+        lines = data_file(name).read_text(encoding="utf-8").splitlines()
+        out.append(frozenset(w.strip() for w in lines if w.strip() and not w.startswith("#")))
+    return out[0], out[1]
 
 
 @lru_cache(maxsize=65536)
 def is_first_name(token: str) -> bool:
-    """True when ``token`` (any case) is in the male or female first-name list."""
+    """True when ``token`` (any case) is a census first name (male or female) or a world first name."""
     male, female, _ = census()
     key = _key(token)
-    return key in male or key in female
+    return key in male or key in female or key in world_names()[0]
 
 
 @lru_cache(maxsize=65536)
 def is_last_name(token: str) -> bool:
-    """True when ``token`` (any case, apostrophes ignored) is in the last-name list."""
-    return _key(token) in census()[2]
+    """True when ``token`` (any case, apostrophes ignored) is a census or world last name."""
+    key = _key(token)
+    return key in census()[2] or key in world_names()[1]
 
 
 @lru_cache(maxsize=65536)
@@ -141,11 +168,33 @@ def _english_index() -> frozenset[str]:
     found = sorted(Path(model.__file__).parent.glob("*/lemmatizer/lookups"))
     if not found:  # pragma: no cover
         return frozenset()
-    index = Lookups().from_disk(found[0]).get_table("lemma_index")
+    lookups = Lookups().from_disk(found[0])
+    index = lookups.get_table("lemma_index")
     words: set[str] = set()
     for key in index:
         words.update(index[key])
+    # Irregular forms ("gave", "went", "children") are listed only as exceptions.
+    exceptions = lookups.get_table("lemma_exc")
+    for key in exceptions:
+        words.update(w for w in exceptions[key] if w not in words)
+        _FORMS.update(w for w in exceptions[key] if exceptions[key][w] != [w])
     return frozenset(words)
+
+
+_FORMS: set[str] = set()
+
+
+def is_inflected_word(token: str) -> bool:
+    """True for an inflected English form ("gave", "meals", "resting") that is no base word itself.
+
+    WordNet's base forms include people and places ("zhou", "james"), its
+    inflected forms hardly ever do, so a rare surname in this set is a word.
+    """
+    word = token.lower()
+    index = _english_index()
+    if word in _FORMS:
+        return True
+    return word not in index and is_english_word(word)
 
 
 _SUFFIXES = (
@@ -198,6 +247,13 @@ def _line_is_upper(text: str, start: int) -> bool:
     return not any(c.islower() for c in line)
 
 
+def _eponym(tok: str) -> bool:
+    """Is ``tok`` a surname that names a disease, sign or test (ICD-10-CM and the eponym lists)?"""
+    from deid.detectors.eponyms import eponym_lists
+
+    return not is_first_name(tok) and eponym_lists().kind(tok) is not None
+
+
 def _good(tok: str) -> bool:
     return not is_common_word(tok) and len(tok) > 1
 
@@ -222,7 +278,9 @@ def find_list_names(text: str) -> Iterator[tuple[int, int, float, str]]:
             yield pair[0]
             i = pair[1]
             continue
-        if (
+        if _eponym(tok):
+            pass  # "Graves orbitopathy", "Barlow/Ortolani": a lone listed eponym needs a cue or a first name
+        elif (
             _is_title(tok)
             and len(tok) > 2
             and _good(tok)
@@ -317,6 +375,82 @@ def derive_common_words() -> list[str]:
     return sorted(out)
 
 
+#: faker person-name locales in Latin script (plus the romanised Chinese and Japanese lists).
+WORLD_LOCALES = tuple(
+    "az_AZ cs_CZ da_DK de_AT de_CH de_DE de_LI de_LU en_GB en_IE en_IN en_KE en_NG en_NZ en_PK en_TH "  # noqa: SIM905
+    "es_AR es_CA es_CL es_CO es_ES es_MX et_EE fi_FI fr_BE fr_CA fr_CH fr_FR fr_QC ga_IE ha_NG hr_HR "
+    "hu_HU id_ID ig_NG is_IS it_IT ja_JP lt_LT lv_LV nl_BE nl_NL no_NO pl_PL pt_BR pt_PT ro_RO sk_SK "
+    "sl_SI sv_SE sw tr_TR tw_GH uz_UZ vi_VN yo_NG zh_CN zh_TW zu_ZA".split()
+)
+_FIRST_ATTRS: tuple[str, ...] = (
+    "first_names",
+    "first_names_male",
+    "first_names_female",
+    "first_names_unisex",
+    "middle_names",
+    "first_romanized_names",
+    "first_romanized_names_male",
+    "first_romanized_names_female",
+)
+_LAST_ATTRS = ("last_names", "last_names_male", "last_names_female", "last_romanized_names")
+
+
+def derive_world_names() -> tuple[list[str], list[str]]:
+    """Recompute ``name_first_world.txt`` and ``name_last_world.txt`` (a development task).
+
+    Source: the person providers of faker (MIT licence) for :data:`WORLD_LOCALES`.
+    Each name is split at blanks and hyphens and folded with :func:`name_key`.
+    Left out: keys under three letters, census names (already listed), and every
+    word that is also English or clinical (WordNet lemmas and forms, spaCy stop
+    words, faker's English word list, words of ICD-10-CM descriptions, and the
+    clinical, organisation and drug word lists in ``deid/data``), so that
+    the lists add names and never an everyday word ("Blessing", "Junk").
+    """
+    import importlib
+
+    import simple_icd_10_cm as icd
+    from faker.providers.lorem.en_US import Provider as Lorem
+    from spacy.lang.en.stop_words import STOP_WORDS
+
+    clinical = {
+        w for c in icd.get_all_codes(False) for w in re.findall(r"[a-z]+", icd.get_description(c).lower())
+    }
+    everyday = set(Lorem.word_list) | set(STOP_WORDS) | clinical
+    # The project's own clinical, organisation and drug word lists ("Hosp", "Dept").
+    for file in (
+        "clinical_words.txt",
+        "org_generic_words.txt",
+        "spacy_ner_stoplist.txt",
+        "facility_words.txt",
+    ):
+        lines = data_file(file).read_text(encoding="utf-8").splitlines()
+        everyday.update(w.strip().lower() for w in lines if w.strip() and not w.startswith("#"))
+    male, female, last = census()
+    out: list[set[str]] = [set(), set()]
+    for locale in WORLD_LOCALES:
+        provider = importlib.import_module(f"faker.providers.person.{locale}").Provider
+        for k, attrs in enumerate((_FIRST_ATTRS, _LAST_ATTRS)):
+            for attr in attrs:
+                values = getattr(provider, attr, None)
+                if not isinstance(values, (list, tuple, dict, set)):
+                    continue  # missing, or a computed property
+                for name in values:  # a tuple, or a dict of name -> weight
+                    for part in re.split(r"[\s-]+", str(name)):
+                        key = name_key(part)
+                        if (
+                            len(key) < 3
+                            or not part[:1].isalpha()
+                            or key in male
+                            or key in female
+                            or key in last
+                            or key.lower() in everyday
+                            or is_english_word(key.lower())
+                        ):
+                            continue
+                        out[k].add(key)
+    return sorted(out[0]), sorted(out[1])
+
+
 class NameListRecognizer(EntityRecognizer):
     """Presidio recognizer ``name_lists.v1``: census-list names with capitalisation and context."""
 
@@ -345,8 +479,17 @@ class NameListRecognizer(EntityRecognizer):
         ]
 
 
-if __name__ == "__main__":  # pragma: no cover - regenerates the shipped word list
+if __name__ == "__main__":  # pragma: no cover - regenerates the shipped word lists
     header = "# Census names that are also everyday or clinical words; see name_lists.derive_common_words.\n"
     data_file("common_words.txt").write_text(
         header + "\n".join(derive_common_words()) + "\n", encoding="utf-8"
     )
+    import faker
+
+    for file, keys in zip(("name_first_world.txt", "name_last_world.txt"), derive_world_names(), strict=True):
+        head = (
+            f"# {'First' if 'first' in file else 'Last'} names of many countries, folded to A-Z; source: faker "
+            f"{faker.VERSION} person providers (MIT licence),\n# locales {' '.join(WORLD_LOCALES)}.\n"
+            "# Census names and English or clinical words are left out; see name_lists.derive_world_names.\n"
+        )
+        data_file(file).write_text(head + "\n".join(keys) + "\n", encoding="utf-8")

@@ -26,6 +26,7 @@ from deid.detectors.name_lists import (
     is_common_word,
     is_english_word,
     is_first_name,
+    is_inflected_word,
     is_last_name,
     name_frequency,
 )
@@ -41,18 +42,30 @@ _KEYS = (
     "weak_phrases",
     "relations",
     "patient_labels",
+    "header_labels",
     "patient_words",
     "alias_phrases",
     "initial_roles",
     "signoff_closers",
     "signoff_roles",
+    "greetings",
+    "wrote_words",
     "ambiguous_credentials",
     "stop_words",
     "name_followers",
     "signature_non_names",
 )
 #: Lists whose words are cues, never name words themselves.
-_CUE_KEYS = ("titles", "strong_phrases", "label_phrases", "medium_phrases", "weak_phrases", "relations")
+_CUE_KEYS = (
+    "titles",
+    "patient_labels",
+    "strong_phrases",
+    "label_phrases",
+    "header_labels",
+    "medium_phrases",
+    "weak_phrases",
+    "relations",
+)
 
 
 @dataclass(frozen=True)
@@ -66,6 +79,9 @@ class Triggers:
     relation_after_re: re.Pattern[str]
     role_paren_re: re.Pattern[str]
     role_initials_re: re.Pattern[str]
+    role_name_re: re.Pattern[str]
+    greeting_re: re.Pattern[str]
+    wrote_re: re.Pattern[str]
 
     def __getattr__(self, key: str) -> frozenset[str]:
         # ``t.stop_words`` etc.: every list of the file by its key.
@@ -117,10 +133,11 @@ def load_triggers(path: Path | None = None) -> Triggers:
     blank = r"(?:[ \t]+|[ \t]*\n[ \t]*)"
     cue = (
         rf"(?<![\w/'’])(?:(?P<title>{alternation(lists['titles'])})(?:\.[ \t]*|[ \t]+)"
-        rf"|(?:(?<=^)|(?<=\n)|(?<=[ \t|]{{2}})|(?<=\t))[ \t]*(?P<label>{alternation(lists['patient_labels'])})"
+        rf"|(?:(?<=^)|(?<=\n)|(?<=[ \t|]{{2}})|(?<=\t)|(?<=[.;][ \t]))[ \t]*"
+        rf"(?P<label>{alternation(lists['patient_labels'] + lists['header_labels'])})"
         rf"[ \t]*[:\-–][ \t]*"
-        rf"|(?:(?<=^)|(?<=\n))(?P<bare>{alternation(lists['patient_labels'])})[ \t]+"
         rf"|(?P<label2>{alternation(lists['label_phrases'])})[ \t]*[:\-–][ \t]*"
+        rf"|(?:(?<=^)|(?<=\n))(?P<bare>{alternation(lists['patient_labels'])})[ \t]+"
         rf"|(?P<strong>{alternation(lists['strong_phrases'])}){sep}"
         rf"|(?P<medium>{alternation(lists['medium_phrases'] + lists['alias_phrases'])}){sep}"
         rf"|(?P<relation>{alternation(lists['relations'])})(?:[ \t]*[,:(][ \t]*|[ \t]+[-–][ \t]*|{blank})"
@@ -138,7 +155,7 @@ def load_triggers(path: Path | None = None) -> Triggers:
         ),
         relation_after_re=re.compile(
             rf"[ \t]*[(\-–][ \t]*(?:(?:pt|patient)['’]?s[ \t]+)?"
-            rf"(?:{alternation(lists['relations'] + lists['alias_phrases'])})\b",
+            rf"(?:{alternation(lists['relations'] + lists['alias_phrases'])}|pgy-?\d)\b",
             re.IGNORECASE,
         ),
         role_paren_re=re.compile(rf"(?<![\w/])(?:{roles})[ \t]*\([ \t]*", re.IGNORECASE),
@@ -146,6 +163,13 @@ def load_triggers(path: Path | None = None) -> Triggers:
         role_initials_re=re.compile(
             rf"(?<![\w/])(?i:{alternation(lists['initial_roles'])})(?:[ \t]+\d{{1,2}})?[ \t]*:?[ \t]+"
             rf"(?P<ini>[A-Z]{{2,3}})(?![\w'’-])"
+        ),
+        role_name_re=re.compile(rf"(?<![\w/])(?i:{alternation(lists['initial_roles'])})[ \t]+(?=[A-Z])"),
+        greeting_re=re.compile(
+            rf"^[ \t>]*(?:{alternation(lists['greetings'])})[ \t]+", re.IGNORECASE | re.MULTILINE
+        ),
+        wrote_re=re.compile(
+            rf"[ \t]*(?:<[^>\n]*>[ \t]*)?(?:{alternation(lists['wrote_words'])})[ \t]*:", re.IGNORECASE
         ),
     )
 
@@ -193,6 +217,23 @@ def line_mode(text: str, pos: int) -> str:
     return "lower" if mode == "mixed" and not _TITLE_CASE.search(line) else mode
 
 
+_NAME_PREFIX = re.compile(r"^(?:Mc|Mac|O['’]|D['’]|De|Di|Da|Du|La|Le|Van|Von|St|Fitz|Al-|El-)", re.IGNORECASE)
+
+
+def name_shaped(tok: str) -> bool:
+    """Can ``tok`` be a name word by its letter case? Not "TFTs", "ECGs", "proBNP", "HbA1c".
+
+    Names with an inner capital have a known prefix ("McNeil", "DeShawn", "LaToya",
+    "MacLeod") or a hyphen ("Okafor-Bright"); other shapes are abbreviations.
+    """
+    if "-" in tok:
+        return all(name_shaped(p) for p in tok.split("-") if p)
+    if tok.isupper() or tok.islower() or tok.istitle() and "'" not in tok and "’" not in tok:
+        return True
+    m = _NAME_PREFIX.match(tok)
+    return m is not None and tok[: m.end()][0].isupper() and tok[m.end() :].istitle()
+
+
 def accept_word(tok: str, mode: str, strength: str, after_first: bool, t: Triggers) -> bool:
     """Is ``tok`` a name word, given the cue's strength and the case mode?
 
@@ -203,7 +244,7 @@ def accept_word(tok: str, mode: str, strength: str, after_first: bool, t: Trigge
     only evidence needed.
     """
     low = tok.lower()
-    if len(tok) < 2 or low in t.cue_words:
+    if len(tok) < 2 or low in t.cue_words or not name_shaped(tok):
         return False
     census = is_first_name(tok) or is_last_name(tok)
     if low in t.stop_words:
@@ -218,8 +259,15 @@ def accept_word(tok: str, mode: str, strength: str, after_first: bool, t: Trigge
         if tok.isupper():  # an acronym in mixed text ("per SNF", "CC: GSW") is a name only when listed
             if strength == "title" or after_first:
                 return plain or foreign
-            # NOTE: rare census surnames are also abbreviations ("ASA", "AKI", "ROS" < 0.005 %).
-            listed = plain and len(tok) > 2 and (is_first_name(tok) or name_frequency(tok) >= 0.005)
+            # NOTE: rare census surnames are also abbreviations ("ASA", "AKI", "ROS" < 0.005 %);
+            # beyond four letters a listed word in capitals is a surname ("Patient: ISHIKAWA, ...").
+            listed = (
+                plain
+                and len(tok) > 2
+                and (
+                    is_first_name(tok) or name_frequency(tok) >= 0.005 or len(tok) > 4 and strength != "weak"
+                )
+            )
             return listed or foreign and strength == "label" and len(tok) > 3
         if strength == "title":
             return True
@@ -233,6 +281,8 @@ def accept_word(tok: str, mode: str, strength: str, after_first: bool, t: Trigge
     if strength in ("title", "strong", "label", "demographic"):
         # Case says nothing here, so an everyday word opens no name ("Patient: see above").
         return plain or foreign
+    if plain and strength in ("weak", "patient") and is_inflected_word(tok) and name_frequency(tok) < 0.01:
+        return False  # "with meals": a rare surname that is a dictionary word, after a weak cue
     return plain or (foreign and strength in ("medium", "relation"))
 
 
@@ -256,12 +306,17 @@ def walk_name(text: str, pos: int, mode: str, strength: str, t: Triggers | None 
         initial = bool(m.group("init")) or (len(tok) == 1 and tok.isupper() and count > 0)
         if m.group("nick"):
             if count == 0:
-                break
+                # 'Preferred: "Jay"', 'aka "Seun"': after a label or alias the quoted name itself.
+                return _quoted_name(text, m, mode, strength, t)
             end = m.end()
         elif initial:
-            if mode == "mixed" and not tok[0].isupper() or strength == "weak" and count == 0:
+            if mode == "mixed" and not tok[0].isupper():
+                break
+            if strength == "weak" and count == 0 and not _initial_then_name(text, m.end(), mode, t):
                 break
             end, count, first_like = m.end(), count + 1, True
+        elif count and tok.lower() in t.credentials and not tok.istitle():
+            break  # "Dr Ann Lee MBChB MRCGP": degrees follow the name
         elif tok.lower() in PARTICLES and strength != "weak":
             nxt = _after_particles(text, m, mode, t)
             if nxt < 0:
@@ -282,7 +337,7 @@ def walk_name(text: str, pos: int, mode: str, strength: str, t: Triggers | None 
             continue
         # "Ann Lee, Bo Chen" is a list; "NGUYEN, VAN BINH" and "Jimenez Ruiz, Maria" are one name.
         c = _COMMA.match(text, end)
-        if c is None or comma or count > 2 or count == 2 and lead_first:
+        if c is None or comma or count > 2 or count == 2 and lead_first or strength == "weak":
             break
         if not _reversed_ok(text, c.end(), mode, t, count == 1):
             break
@@ -292,6 +347,24 @@ def walk_name(text: str, pos: int, mode: str, strength: str, t: Triggers | None 
     return end
 
 
+def _quoted_name(text: str, m: re.Match[str], mode: str, strength: str, t: Triggers) -> int:
+    """End of a quoted name opening a label's value, or where the quote starts when it is not one."""
+    if strength not in ("label", "strong", "medium", "title"):
+        return m.start()
+    inner = re.match(r'\(?["“]', m.group())
+    start = m.start() + (inner.end() if inner else 0)
+    words = re.findall(WORD, text[start : m.end()])
+    if words and all(accept_word(w, case_mode(w), "medium", k > 0, t) for k, w in enumerate(words)):
+        return start + len(" ".join(words))
+    return m.start()
+
+
+def _initial_then_name(text: str, pos: int, mode: str, t: Triggers) -> bool:
+    """After a weak cue an initial needs a name word after it ("by R. Delacroix", not "by E. coli")."""
+    m = re.compile(rf"[ \t]?({WORD})").match(text, pos)
+    return m is not None and len(m.group(1)) > 2 and accept_word(m.group(1), mode, "weak", False, t)
+
+
 def _reversed_ok(text: str, pos: int, mode: str, t: Triggers, one: bool) -> bool:
     """After "Lastname," comes a first name written in the same habit (census, or foreign after one word).
 
@@ -299,6 +372,11 @@ def _reversed_ok(text: str, pos: int, mode: str, t: Triggers, one: bool) -> bool
     first name continues the name ("Jimenez Ruiz, Maria"); a list of people is read as two names.
     """
     m = _TOKEN.match(text, pos)
+    if m is not None and m.group("init"):
+        # "Ashdown-Reyes, I." and "Ferreira da Silva, M.J.": initials end the reversed name.
+        return not re.match(r"[ \t]*[^\W\d_]", text[m.end() :]) and (
+            mode != "mixed" or m.group()[0].isupper()
+        )
     if m is None or not m.group("word"):
         return False
     tok = m.group()

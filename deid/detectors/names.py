@@ -23,7 +23,23 @@ from typing import Any
 
 from presidio_analyzer import EntityRecognizer, RecognizerResult
 
-from deid.detectors.name_lists import is_common_word, is_english_word, is_first_name, is_last_name
+from deid.detectors.name_lists import (
+    is_common_word,
+    is_english_word,
+    is_first_name,
+    is_inflected_word,
+    is_last_name,
+    name_frequency,
+)
+from deid.detectors.name_shapes import (
+    Hit,
+    demographic_hits,
+    last_first_hits,
+    message_hits,
+    role_hits,
+    signature_hits,
+    signoff_hits,
+)
 from deid.detectors.name_triggers import (
     WORD,
     Triggers,
@@ -45,7 +61,6 @@ __all__ = [
 ]
 
 RECOGNIZER = "names.v1"
-Hit = tuple[int, int, float, str]
 _SCORES = {
     "title": 0.9,
     "label": 0.85,
@@ -75,6 +90,8 @@ def _cue_hits(text: str, t: Triggers) -> Iterator[Hit]:
             # "SNF nurse Dawn": a lower-case title in mixed writing; case counts, the title less.
             mode, strength = "mixed", "relation"
         name_end = walk_name(text, start, mode, strength, t)
+        if text[start : start + 1] in ('"', "“") and m.group(kind).lower() == "pronounced":
+            name_end = start  # 'Jan (pronounced "Yahn")': a sound, not a name
         if kind in ("patient", "bare"):
             name_end = _patient_name(text, start, name_end, mode, t)
         if kind == "bare":
@@ -83,14 +100,31 @@ def _cue_hits(text: str, t: Triggers) -> Iterator[Hit]:
                 name_end = max(name_end, wide)
             elif m.group(kind).lower() not in t.patient_words:
                 name_end = start
-        if not _has_word(text[start:name_end], mode != line_mode(text, start)):
-            name_end = start
+        lone_initial = kind == "title" and re.fullmatch(r"[A-Z]\.?", text[start:name_end]) is not None
+        if not lone_initial and not _has_word(text[start:name_end], mode != line_mode(text, start)):
+            name_end = start  # but "Mr K." is a name: a title before one initial
+        if name_end > start and _role_phrase(text, start, name_end, t):
+            name_end = start  # "To: School Nurse": a word before a role is no name
         if name_end > start:
-            yield start, name_end, _SCORES[kind], _RULE.get(kind, "phrase")
+            lead = 1 if text[start] in '"“(' else 0
+            yield start + lead, name_end, _SCORES[kind], _RULE.get(kind, "phrase")
             if kind in ("label", "label2", "title"):
                 yield from _list_after(text, name_end, mode, t, kind != "title")
         elif kind == "relation":
             yield from _relation_everyday(text, start, mode, t)
+
+
+def _role_phrase(text: str, start: int, end: int, t: Triggers) -> bool:
+    """Is a one-word dictionary "name" followed by a capitalised cue word ("School Nurse")?"""
+    m = re.match(rf"[ \t]+({WORD})", text[end : end + 40])
+    word = text[start:end]
+    return (
+        m is not None
+        and m.group(1)[0].isupper()
+        and m.group(1).lower() in t.cue_words
+        and " " not in word
+        and is_english_word(word)
+    )
 
 
 def _titled_pair(name: str) -> bool:
@@ -136,6 +170,10 @@ def _patient_name(text: str, start: int, end: int, mode: str, t: Triggers) -> in
 
 
 def _plain(word: str) -> bool:
+    """A listed name that is not an everyday word; a rare surname that is a dictionary word
+    ("gave", "meals") does not count after the weak patient cue."""
+    if is_inflected_word(word) and name_frequency(word) < 0.01 and not is_first_name(word):
+        return False
     return (is_first_name(word) or is_last_name(word)) and not is_common_word(word)
 
 
@@ -207,177 +245,26 @@ def _relation_after_hits(text: str, t: Triggers) -> Iterator[Hit]:
             tok = one.group(1) if one else ""
             if tok[:1].isupper() and not tok.isupper() and (is_first_name(tok) or is_last_name(tok)):
                 start = m.start() - len(tok)
-        if start < m.start():
+        if start < m.start() and not (mode == "mixed" and _in_titled_phrase(text, start, t)):
             yield start, m.start(), _SCORES["relation"], "relation_before"
 
 
-# A name before demographics: "BILL LONG 64M", "April May, 23F", "Dylan Ng, 19,", "Will is a 59 y/o",
-# "Eduardo Paredes, 94 años"; or at a line start before a record number ("liu yang | 3419962").
-_DEMOGRAPHIC = re.compile(
-    r"(?:[ \t]*,[ \t]*|[ \t]+)(?:is[ \t]+an?[ \t]+)?\d{1,3}(?:[ \t]?(?:yo|y/o|y\.o\.|yrs?|years?|años|anos)\b"
-    r"|[ \t-]?(?:year|yr)s?-?[ \t]?old\b|[ \t]?[FfMm]\b)"
-    r"|[ \t]*,[ \t]*\d{1,3}[ \t]*,"
-    r"|(?:[ \t]*\|[ \t]*|[ \t]{2,})\d{5,}\b",
-)
+def _in_titled_phrase(text: str, start: int, t: Triggers) -> bool:
+    """Is a capitalised dictionary word right before ``start`` mid-sentence ("Depression Scale (mom)")?
 
-
-def _demographic_hits(text: str, t: Triggers) -> Iterator[Hit]:
-    for m in _DEMOGRAPHIC.finditer(text):
-        if text[m.start() - 1 : m.start()].isdigit():
-            continue
-        mode = line_mode(text, m.start())
-        prev = re.search(rf"({WORD})$", text[max(0, m.start() - 40) : m.start()])
-        if mode != "upper" and prev is not None and prev.group(1).islower():
-            mode = "lower"  # "wojciech grabowski  5931375" on a line with capitals elsewhere
-        elif prev is not None and len(prev.group(1)) > 1 and prev.group(1).isupper():
-            mode = "upper"  # "BILL LONG 64M" on a line with lower-case words after it
-        start = name_before(text, m.start(), mode, t, "demographic")
-        if start == m.start() and m.group().lstrip().startswith("is"):
-            start = _first_name_before(text, m.start())
-        if start == m.start():
-            continue
-        lead = text[text.rfind("\n", 0, start) + 1 : start]
-        record = "|" in m.group() or m.group().startswith("  ")
-        # A record number needs the name at the line start; demographics need a
-        # sentence or line start (or a dash) before the name.
-        if (
-            record
-            and lead.strip()
-            or not record
-            and lead.strip()
-            and not re.search(r"(?:[.:;]|\s[-–])\s*$", lead)
-        ):
-            continue
-        if case_mode(text[start : m.start()]) == "mixed" and not all(
-            w[0].isupper() for w in re.findall(WORD, text[start : m.start()])
-        ):
-            continue  # "Peds well-child 4 yr": a name is cased alike throughout
-        words = re.findall(WORD, text[start : m.start()])
-        if len(words) == 1 and words[0].isupper() and not (is_first_name(words[0]) or is_last_name(words[0])):
-            continue  # "History: COPD, 72M": one word in capitals must be a listed name
-        yield start, m.start(), 0.8, "demographic"
-
-
-def _first_name_before(text: str, end: int) -> int:
-    """Start of a lone capitalised first name opening a sentence before ``end`` ("Will is a 59 y/o")."""
-    m = re.search(rf"(?:^|(?<=[.\n])[ \t]*)({WORD})$", text[max(0, end - 40) : end])
-    tok = m.group(1) if m else ""
-    return end - len(tok) if tok.istitle() and is_first_name(tok) else end
-
-
-_SIG_DATE = r"\d{1,2}[/.]\d{1,2}(?:[/.]\d{2,4})?|\d{4}"
-_SIG_TAIL = re.compile(
-    rf"(?:^[ \t]*(?:[-–—]{{1,2}}|/)|[ \t][-–—]{{1,2}}|(?<![\d/.])(?:{_SIG_DATE})|(?P<stop>[.;]))[ \t]*"
-    rf"(?P<sig>(?:[^\W\d_]\.[ \t]?){{0,2}}{WORD}(?:['’][sS])?(?:[ \t]+{WORD}){{0,2}})[ \t.]*$",
-    re.MULTILINE,
-)
-
-
-def _signature_hits(text: str, t: Triggers) -> Iterator[Hit]:
-    """A signer ending a line: "- pb", "-- C. Okonkwo", "3/21 sc", and "... 4409. Pruett" on the last line."""
-    last = text.rstrip().rfind("\n") + 1
-    for m in _SIG_TAIL.finditer(text):
-        sig, s = m.group("sig"), m.start("sig")
-        bare = re.sub(r"['’][sS]$", "", sig)
-        if m.group("stop") and (s < last or _abbreviation_before(text, m.start("stop"), t)):
-            continue  # after a full stop only the note's final line is a sign-off
-        words = re.findall(WORD, bare)
-        line = text[text.rfind("\n", 0, s) + 1 : s]
-        if len(words) == 1 and 2 <= len(words[0]) <= 3 and not bare.count("."):
-            if not any(c.islower() for c in line + sig):
-                continue  # "CYTOLOGY - GYN": a heading, not a signer
-            low = words[0].lower()
-            if low in t.signature_non_names or low in t.stop_words or low in t.credentials:
-                continue
-            yield s, s + len(sig), 0.7, "signature"
-            continue
-        mode = case_mode(sig)
-        end = walk_name(text, s, mode, "strong", t)
-        plain = [w for w in words if (is_first_name(w) or is_last_name(w)) and not is_common_word(w)]
-        foreign = [w for w in words if not is_english_word(w) and w.lower() not in t.signature_non_names]
-        # A lone lower-case word ("- cont") must be a listed name; capitalised, a foreign word will do.
-        if end >= s + len(sig.rstrip(".")) and (
-            plain or foreign and (len(words) > 1 or words[0][0].isupper())
-        ):
-            yield s, end, 0.7, "signature"
-
-
-def _abbreviation_before(text: str, dot: int, t: Triggers) -> bool:
-    """Is the full stop at ``dot`` the end of a title or a one-letter initial ("Dr.", "J.")?"""
-    m = re.search(r"([^\W\d_]+)$", text[max(0, dot - 12) : dot])
-    return m is not None and (len(m.group(1)) == 1 or m.group(1).lower() in t.titles)
-
-
-def _role_hits(text: str, t: Triggers) -> Iterator[Hit]:
-    for m in t.role_initials_re.finditer(text):
-        ini = m.group("ini").lower()
-        if (
-            ini not in t.signature_non_names
-            and ini not in t.credentials
-            and not re.match(r"[ \t]*\d", text[m.end() :])
-        ):
-            yield m.start("ini"), m.end("ini"), 0.7, "role"
-    for m in t.role_paren_re.finditer(text):
-        end = walk_name(text, m.end(), line_mode(text, m.end()), "relation", t)
-        if end > m.end() and text[end : end + 2].lstrip(" ").startswith(")"):
-            yield m.end(), end, 0.75, "role"
-
-
-def _signoff_hits(text: str, t: Triggers) -> Iterator[Hit]:
-    lines = text.split("\n")
-    offset = 0
-    for k, line in enumerate(lines):
-        body = line.strip().rstrip(",")
-        if body and 2 <= len(body.split()) <= 4:
-            prev = lines[k - 1].strip().rstrip(",:.").lower() if k else ""
-            nxt = lines[k + 1].strip().lower() if k + 1 < len(lines) else ""
-            head = (nxt.split() or [""])[0].rstrip(",.")
-            if (
-                prev in t.signoff_closers
-                or nxt.split(",")[0].rstrip(".") in t.signoff_roles
-                or head in t.credentials
-            ):
-                lead = offset + len(line) - len(line.lstrip())
-                end = walk_name(text, lead, case_mode(body), "strong", t)
-                if end - lead >= len(body.rstrip(".")) - 1:
-                    yield lead, end, 0.8, "signoff"
-        offset += len(line) + 1
-
-
-_LAST_FIRST = re.compile(
-    rf"(?<![\w,])(?P<last>{WORD}),[ \t]?(?P<first>{WORD})(?:[ \t](?P<mid>[^\W\d_])\.?)?(?![\w'’-])"
-)
-
-
-def _last_first_hits(text: str) -> Iterator[Hit]:
-    """ "QUIMBY, HAROLD J" and "Quimby, Harold": both words listed, cased alike."""
-    for m in _LAST_FIRST.finditer(text):
-        last, first = m.group("last"), m.group("first")
-        if len(last) < 2 or len(first) < 2 or not is_last_name(last):
-            continue
-        if not is_first_name(first):
-            # A first name newer than the 1990 lists ("QUIMBY, MAKAYLA"): a listed,
-            # non-everyday surname and a non-English word, both capitalised alike.
-            if (
-                not is_common_word(last)
-                and not is_english_word(first)
-                and (last.isupper() and first.isupper() or last.istitle() and first.istitle())
-            ):
-                yield m.start(), m.end(), 0.6, "last_first"
-            continue
-        c_last, c_first = is_common_word(last), is_common_word(first)
-        upper, title, lower = (
-            last.isupper() and first.isupper(),
-            last.istitle() and first.istitle(),
-            last.islower() and first.islower(),
-        )
-        if c_last and c_first or not (upper or title or lower):
-            continue
-        if (c_last or c_first) and not (m.group("mid") or upper):
-            continue
-        if lower and (c_last or c_first):
-            continue
-        yield m.start(), m.end(), 0.8 if not (c_last or c_first) else 0.6, "last_first"
+    Then the words are the tail of a titled phrase (a scale, a form, a clinic), not a name.
+    """
+    m = re.search(rf"(?<=[^\W\d_][ \t])({WORD})[ \t]+$", text[max(0, start - 60) : start])
+    if m is None:
+        return False
+    word = m.group(1)
+    return (
+        word[0].isupper()
+        and not word.isupper()
+        and word.lower() not in t.cue_words
+        and is_english_word(word)
+        and not (is_first_name(word) or is_last_name(word))
+    )
 
 
 def find_names(text: str, t: Triggers | None = None) -> list[Hit]:
@@ -387,16 +274,17 @@ def find_names(text: str, t: Triggers | None = None) -> list[Hit]:
         *_cue_hits(text, t),
         *_credential_hits(text, t),
         *_relation_after_hits(text, t),
-        *_signoff_hits(text, t),
-        *_demographic_hits(text, t),
-        *_signature_hits(text, t),
-        *_role_hits(text, t),
+        *signoff_hits(text, t),
+        *demographic_hits(text, t),
+        *signature_hits(text, t),
+        *role_hits(text, t),
+        *message_hits(text, t),
     ]
     # "cc: Ann Lee, Bo Chen" is two names, not "Lee, Bo": a reversed name may
     # not cut through a cue-found one.
     reversed_names = [
         h
-        for h in _last_first_hits(text)
+        for h in last_first_hits(text, t)
         if not any(h[0] < c[1] and c[0] < h[1] and not (h[0] <= c[0] and c[1] <= h[1]) for c in cued)
     ]
     hits = sorted(cued + reversed_names)

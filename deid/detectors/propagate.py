@@ -62,6 +62,8 @@ def _name_word_ok(word: str) -> bool:
     triggers = default_triggers()
     if low in triggers.stop_words or low in triggers.cue_words or low in triggers.credentials:
         return False
+    if low in triggers.signature_non_names:
+        return False  # "neg", "cont", "ok": clinical shorthand, never carried as a name
     if letters.isupper() and len(letters) <= 3 and (is_common_word(word) or not is_last_name(word)):
         return False  # "CP", "MRN": a short capital word is an abbreviation unless a listed surname
     census = is_first_name(word) or is_last_name(word)

@@ -133,3 +133,77 @@ def test_recognizer_results_carry_rule_name() -> None:
     assert [(r.start, r.end, r.entity_type) for r in results] == [(10, 23, "NAME")]
     assert results[0].recognition_metadata["recognizer_name"] == "name_lists.v1/first_last"
     assert rec.analyze("Seen with Harold Quimby.", ["PHONE"], None) == []
+
+
+@pytest.mark.parametrize(
+    ("token", "key"),
+    [
+        # Unicode NFKD decomposition drops the accents (Unicode Standard Annex #15);
+        # the letters without a decomposition are mapped by hand (common practice).
+        ("Szabó", "SZABO"),
+        ("Łukasz", "LUKASZ"),
+        ("Sørensen", "SORENSEN"),
+        ("Straße", "STRASSE"),
+        ("Guðrún", "GUDRUN"),
+        ("O'Neill", "ONEILL"),
+    ],
+)
+def test_name_key_folds_accents(token: str, key: str) -> None:
+    assert nl.name_key(token) == key
+
+
+@pytest.mark.parametrize(
+    ("token", "first", "last"),
+    [
+        # Present in faker's person lists (pl_PL, en_NG, fi_FI, en_KE) and absent from the
+        # 1990 census files, so only the world lists can know them (from the faker sources).
+        ("Zbigniew", True, False),
+        ("Okonkwo", False, True),
+        ("Virtanen", False, True),
+        ("Jepkosgei", True, True),
+    ],
+)
+def test_world_names_extend_the_census(token: str, first: bool, last: bool) -> None:
+    male, female, census_last = nl.census()
+    key = nl.name_key(token)
+    assert key not in male and key not in female and key not in census_last
+    assert (nl.is_first_name(token), nl.is_last_name(token)) == (first, last)
+
+
+def test_world_lists_hold_no_english_or_clinical_word() -> None:
+    first, last = nl.world_names()
+    # The derivation leaves out every English (WordNet) word: common practice for name lists.
+    assert not any(nl.is_english_word(k.lower()) for k in first | last)
+    assert "HOSP" not in last and "JUNK" not in last
+
+
+@pytest.mark.parametrize(
+    ("word", "inflected"),
+    [
+        # Irregular and regular inflections (WordNet exception lists, as shipped with spaCy's lemmatizer).
+        ("gave", True),
+        ("children", True),
+        ("meals", True),
+        ("meal", False),
+        ("zhou", False),  # a WordNet base form (a dynasty), also a surname
+    ],
+)
+def test_inflected_words(word: str, inflected: bool) -> None:
+    assert nl.is_inflected_word(word) is inflected
+
+
+@pytest.mark.parametrize(
+    "text",
+    [
+        # ICD-10-CM names the eponyms: E05.00 "Thyrotoxicosis with diffuse goiter" is Graves' disease
+        # (from memory); a lone listed eponym needs a cue or a first name to count as a person.
+        "Mild inactive Graves orbitopathy.",
+        "Hips: no clicks (Barlow and Ortolani negative).",
+    ],
+)
+def test_lone_eponyms_are_not_single_names(text: str) -> None:
+    assert _found(text) == []
+
+
+def test_world_first_and_last_make_a_pair() -> None:
+    assert _found("Seen with Zbigniew Virtanen today.") == [("Zbigniew Virtanen", "first_last")]

@@ -77,6 +77,28 @@ RECALL = [
     # Lists after a title or a copy line.
     ("Drs. Lee and Okafor agree.", ["Lee", "Okafor"]),
     ("Dr. Lee, Oncology and Dr. Yetunde Balogun, Wrenfield Clinic", ["Lee", "Yetunde Balogun"]),
+    # Form labels of other layouts and countries (common practice).
+    ("Ordering: Brightwater-Osei, K. (Cardiology)", ["Brightwater-Osei, K."]),
+    ("Surname/Forename: OKONJO-BRANDT / WILHELMINA", ["OKONJO-BRANDT", "WILHELMINA"]),
+    ("Name (family, given): TRAN Thi Lan", ["TRAN Thi Lan"]),
+    ("Employee:   Kowalczyk, Bartosz   Emp ID 4471", ["Kowalczyk, Bartosz"]),
+    ("Support person: Torvald (FOB).", ["Torvald"]),
+    ("Referred by: Lefevre (endo)", ["Lefevre"]),
+    ('Name chosen: "Ingeborg".', ["Ingeborg"]),
+    ('Preferred: "Tobi"   MRN 4411', ["Tobi"]),
+    ("Trask, Odile (legal: Wilhelmina), 40 F", ["Trask, Odile", "Wilhelmina"]),
+    # Titles of other languages, newborns, a title before one initial, degrees after the name.
+    ("Patient: Frau Gudrun Abendroth, geb. 01.02.1960", ["Gudrun Abendroth"]),
+    ("Ds. Vermeulen (visiting).", ["Vermeulen"]),
+    ("Spoke with Dr. med. U. Pfannenstiel today.", ["U. Pfannenstiel"]),
+    ("Baby Girl Ravensworth, born 06:41.", ["Ravensworth"]),
+    ("Quick update on Mr K. (your Oct TSS).", ["K."]),
+    ("Yours sincerely,\nDr Eluned Pryce-Hughes MBChB MRCGP", ["Eluned Pryce-Hughes"]),
+    # People around the patient, referrals, a weak cue before an initial.
+    ("Called his manager Zbigniew Wasilewski (with consent).", ["Zbigniew Wasilewski"]),
+    ("Transplant referral to Okonkwo in nephrology.", ["Okonkwo"]),
+    ("Resident T. Wren-Abiodun (PGY-2) present.", ["T. Wren-Abiodun"]),
+    ("Cannulated by R. Kasprzak, CCHT", ["R. Kasprzak"]),
 ]
 
 
@@ -126,6 +148,14 @@ PRECISION = [
     "Peds well-child 4 yr, 5/5/21.",
     "Tech ID 445. Reader 1 reviewed.",
     "MD (on call) aware. Nurse (night) aware.",
+    # Abbreviation shapes, e-mail subjects, roles, faiths, inflected words after weak cues.
+    "Review 8 weeks with TFTs.",
+    "Subject: Rash on carbimazole",
+    "To: School Nurse, Lakeview Elementary",
+    "(pt gave UK format)",
+    "sevelamer with meals, cinacalcet 30 mg.",
+    "Chaplain: Lutheran; requests hymns.",
+    "Treated by E. coli protocol.",
 ]
 
 

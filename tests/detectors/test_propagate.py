@@ -110,3 +110,11 @@ def test_titles_credentials_and_nickname_quotes_are_not_name_words() -> None:
     spans = [_span(text, "Guy Marchetti, PA-C", "NAME"), _span(text, 'Clarence "Bud" Whitfield', "NAME")]
     got = [g[0] for g in _found(text, spans)]
     assert got == ["Bud"]
+
+
+def test_clinical_shorthand_is_never_carried_as_a_name() -> None:
+    # A name span that took in a shorthand word ("Ann Neg") must not mark every "neg"
+    # in the note (common practice: "neg", "ok", "cont" are chart shorthand).
+    text = "Mother Ann Neg seen. GBS neg, HIV neg."
+    got = _found(text, [_span(text, "Ann Neg", "NAME")])
+    assert "neg" not in [g[0] for g in got]

@@ -1,0 +1,67 @@
+"""Names shown by the shape of the text, not a cue word: :mod:`deid.detectors.name_shapes`."""
+
+from __future__ import annotations
+
+import pytest
+
+from deid.detectors.name_shapes import message_hits, signature_hits
+from deid.detectors.name_triggers import default_triggers
+from deid.detectors.names import find_names
+
+
+def _names(text: str) -> list[str]:
+    return [text[s:e] for s, e, _, _ in find_names(text)]
+
+
+# Invented names throughout; each expected list is what a reader would mark.
+RECALL = [
+    # Letters and messages: greetings, closers on the same or the line before (common practice).
+    ("Dear Siobhan,\nThanks for the note.", ["Siobhan"]),
+    ("Hi Raj - quick question.", ["Raj"]),
+    ("Hi Billie, Dr. Ashworth reviewed the photo", ["Billie", "Ashworth"]),
+    ("Best wishes, Oluwadamilare Fashola (Hosp No. 1)", ["Oluwadamilare Fashola"]),
+    ("Gracias,\nXimena\n--", ["Ximena"]),
+    # Quoted e-mail and chat: the writer before "wrote:", the speaker after a time stamp.
+    ("> On Tue, 3 May 2022 09:12, Ingrid Solheim-Vance <i.sv@example.org> wrote:", ["Ingrid Solheim-Vance"]),
+    ("[05/06/2023 10:15] Ottilie Brann, RN (Clinic):\n  Hi there", ["Ottilie Brann"]),
+    ("Subject: lab results\n\nTariq, the potassium is back.", ["Tariq"]),
+    # Initials in brackets after a date, signers joined by "/" or written as initials only.
+    ("Typed: 12-02-2022 (mw)\nDiagnosis: x", ["mw"]),
+    ("-- Greer/Oyelaran-Pike\n", ["Greer", "Oyelaran-Pike"]),
+    ("Next visit Wed 8/17.  -- O.F.\n", ["O.F."]),
+    # Ages in weeks or months; a name after a role word or in brackets after one.
+    ("Ximena is an 8 week old girl here for WCC.", ["Ximena"]),
+    ("scribe T. Arkwright\n", ["T. Arkwright"]),
+    ("Surgeon Nwachukwu-Hale; anesthesia", ["Nwachukwu-Hale"]),
+    ("neurosurg (Varga) rec repeat CT", ["Varga"]),
+]
+
+
+@pytest.mark.parametrize(("text", "expected"), RECALL)
+def test_recall(text: str, expected: list[str]) -> None:
+    assert _names(text) == expected
+
+
+PRECISION = [
+    "Client is an 89-year-old woman.",  # a form label, not a first name
+    "Edinburgh Postnatal Depression Scale (mom): 6.",  # a titled phrase before a relation
+    "Color   13/13     13/13 Ishihara",  # "13/13" is a score, not a date
+    "Diuresed 3.2 L.\nSocial: retired",  # a volume, not a date before initials
+    "WENDFORD EYE INSTITUTE -- OCULOPLASTICS\nName: x",  # a heading in capitals
+    "CO-SURGEON (ENT): x",  # a specialty in brackets
+    "Fellow to the team, Consultant CT Surgeon",  # imaging before a role word
+    "Nurse reply 20:10 (EST): call us",  # a time zone after a clock time
+    "Pain 7/10 - ok",
+]
+
+
+@pytest.mark.parametrize("text", PRECISION)
+def test_precision(text: str) -> None:
+    assert _names(text) == []
+
+
+def test_rules_are_named_in_the_hits() -> None:
+    t = default_triggers()
+    text = "Dear Siobhan,\nAll well.\n-- O.F.\n"
+    assert [r for *_, r in message_hits(text, t)] == ["greeting"]
+    assert [text[s:e] for s, e, _, _ in signature_hits(text, t)] == ["O.F."]
