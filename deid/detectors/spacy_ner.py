@@ -148,7 +148,57 @@ def _trim_other(text: str, s: int, e: int) -> tuple[int, int] | None:
         toks.pop(0)
     while len(toks) > 1 and text[toks[-1][0] : toks[-1][1]].islower():
         toks.pop()
+    while len(toks) > 1 and re.fullmatch(r"[A-Z]\.?", text[toks[0][0] : toks[0][1]]):
+        toks.pop(0)  # "L Bell's palsy": a side (left, right), not part of a name
     return (toks[0][0], toks[-1][1]) if toks else None
+
+
+_CAMEL = re.compile(r"^[A-Za-z]*[a-z][A-Z][A-Za-z]*$")
+_HYPHEN_CODE = re.compile(r"^(?=[^-]*-)(?=.*(?:^|-)[A-Z]{2,4}(?:-|$))[A-Za-z]{1,4}(?:-[A-Za-z0-9]{1,4})+$")
+_SENTENCE_START = re.compile(r"(?:^|\n|[.!?]\s|--\s)[\s\-*\u2022>]*$")
+#: Parts of speech (spaCy's universal tags) that a one-word name never has.
+_NOT_NAME_POS = frozenset({"VERB", "AUX", "ADJ", "ADV", "ADP", "PRON", "DET", "NUM", "SCONJ", "CCONJ", "INTJ"})
+
+
+def _unsupported(text: str, s: int, e: int, doc: object = None) -> bool:
+    """True for a non-person piece that nothing shows to be a name (listed places never are).
+
+    The small model calls many capitalised words ORG or GPE. One word alone
+    is refused when it is three letters or fewer ("Hb", "Acc"), in mixed
+    case ("TcB", "RhIG", brand names), an ordinary English word
+    ("Controller", "Reply"), tagged as a verb or adjective, or stands first in
+    a sentence or line, where every word is capitalised anyway. A piece in
+    capitals is refused when every word is ordinary English, generic or
+    clinical ("PRIVACY OFFICE"): a header, not a name; so are abbreviations
+    joined by hyphens ("LIMA-LAD") and ordinary words beside a code
+    ("Workstation IP").
+    """
+    from deid.detectors.organizations import english_words, org_lists
+
+    piece = text[s:e]
+    if places().classify(piece) is not None:
+        return False
+    words = piece.split()
+    english, generic = english_words(), org_lists()
+
+    def ordinary(word: str) -> bool:
+        parts = [p for p in re.split(r"[-/]", word.strip(".,'\u2019").lower()) if p]
+        return all(p in english or generic.is_generic(p) for p in parts)
+
+    if any(_HYPHEN_CODE.match(w) for w in words):
+        return True  # "LIMA-LAD", "DTaP-IPV-Hib", "C-SSRS": joined abbreviations
+    if len(words) > 1 and not piece.isupper():
+        codes = [w for w in words if _CODE_WORD.match(w) and w[:1].isupper()]
+        return bool(codes) and all(ordinary(w) for w in words if w not in codes)  # "Workstation IP"
+    if len(words) == 1:
+        word = piece.strip(".,'\u2019")
+        if len(word) <= 3 or _CAMEL.match(word) or ordinary(word):
+            return True
+        if _SENTENCE_START.search(text[max(0, s - 40) : s]):
+            return True
+        span = doc.char_span(s, e, alignment_mode="expand") if hasattr(doc, "char_span") else None
+        return span is not None and len(span) == 1 and span[0].pos_ in _NOT_NAME_POS
+    return piece.isupper() and all(ordinary(w) for w in words)
 
 
 def map_label(spacy_label: str, piece: str) -> str | None:
@@ -209,6 +259,8 @@ class SpacyEntityRecognizer(EntityRecognizer):
                 header = piece.isupper() or text[trimmed[1] : trimmed[1] + 1] == ":"
                 if label is None or label not in wanted or ((label != "NAME" or header) and _generic(piece)):
                     continue  # a person's name in capitals or before ":" is checked too ("DISCHARGE SUMMARY")
+                if label != "NAME" and _unsupported(text, trimmed[0], trimmed[1], nlp_artifacts.tokens):
+                    continue
                 score = SCORES[label]
                 if label == "NAME" and len(piece.split()) == 1:
                     score = SINGLE_WORD_NAME_SCORE

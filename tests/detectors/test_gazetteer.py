@@ -37,7 +37,7 @@ CASES = [
     ("Massachusetts resident.", {("Massachusetts", "STATE")}),
     ("Virginia called her mother.", set()),  # common first name
     ("She lives in Virginia.", {("Virginia", "STATE")}),
-    ("Travelled to Poland in June.", set()),  # a country (spaCy reports it), not Poland, ME
+    ("Travelled to Poland in June.", {("Poland", "COUNTRY")}),  # a country, not Poland, ME
     ("Reading glasses lost.", set()),
     # address blocks (USPS Publication 28 layout: street line, then city, state and ZIP)
     ("Address:\n206 Birchmoor Close\nDunmarrow, Tamsin County\nOH 45998\n",
@@ -105,3 +105,43 @@ def test_flags_in_derived_list(name: str, flag: str, reason: str | None) -> None
     assert flag in flags[name]
     if reason:
         assert name.lower() in cm.get_description(reason).lower()
+
+
+# Round 2: places outside the US. Provinces, states and counties come from pycountry's
+# ISO 3166-2 data (an open standard); postcode shapes are Canada Post's "A1A 1A1" and
+# Australia Post's four digits (from memory). Towns are invented unless listed.
+WORLD = [
+    ("She lives in Tralee, Co. Kerry with her son.", {("Tralee", "CITY"), ("Co. Kerry", "COUNTY")}),  # IE-KY
+    ("Moved from Tauwhare Bay, New Zealand in 2019.", {("Tauwhare Bay", "CITY"), ("New Zealand", "COUNTRY")}),
+    ("Family in Quellbrook, Maharashtra.", {("Quellbrook", "CITY"), ("Maharashtra", "STATE")}),  # IN-MH
+    ("Transferred from Ardley, ON K7L 3N6 today.", {("Ardley", "CITY"), ("ON", "STATE"), ("K7L 3N6", "ZIP")}),
+    ("Home: 4 Wattle St, Bindaree NSW 2830.", {("Bindaree", "CITY"), ("NSW", "STATE"), ("2830", "ZIP")}),
+    ("She grew up in Ontario.", {("Ontario", "STATE")}),  # the province, not Ontario, CA
+    ("Lives in Ernakulam District with family.", {("Ernakulam District", "COUNTY")}),
+    ("Trip to IRAN in April.", {("IRAN", "COUNTRY")}),
+    ("Accepting unit: Ravelstone, MN\n", {("MN", "STATE")}),  # a state code after an unlisted town
+    # look-alikes
+    ("Records in English and Russian.", set()),  # ISO 639-1 languages, not towns
+    ("Seen by Kirsty M., MA\n", set()),  # a credential, not Massachusetts
+    ("School District meeting.", set()),  # an ordinary word before "District"
+    ("Emergency Department, Wales", {("Wales", "COUNTRY")}),  # generic words are no town
+]
+
+
+@pytest.mark.parametrize(("text", "expected"), WORLD, ids=[c[0][:30] for c in WORLD])
+def test_world_places(text: str, expected: set[tuple[str, str]]) -> None:
+    assert found(text) == expected
+
+
+def test_world_regions_follow_pycountry() -> None:
+    pycountry = pytest.importorskip("pycountry")  # only needed to regenerate the list
+    from deid.detectors.world_places import derive_world_regions, load_regions
+
+    rows = {(r.name, r.label, r.country) for r in load_regions()}
+    assert ("Ontario", "STATE", "CA") in rows and pycountry.subdivisions.get(code="CA-ON").name == "Ontario"
+    assert ("Kerry", "COUNTY", "IE") in rows  # ISO 3166-2:IE type "County"
+    assert ("England", "COUNTRY", "GB") in rows
+    assert [ln for ln in derive_world_regions()] == [
+        ln for ln in Path(__file__).parents[2].joinpath("deid/data/world_regions.txt").read_text(encoding="utf-8").splitlines()
+        if not ln.startswith("#")
+    ]

@@ -63,3 +63,39 @@ def test_recognizer_restricts_labels() -> None:
     results = OrganizationRecognizer().analyze(text, ["FACILITY"], nlp)
     assert {text[r.start : r.end] for r in results} == {"Greyhaven Senior Living"}
     assert results[0].recognition_metadata["recognizer_name"] == "organizations.v1/suffix"
+
+
+# Round 2: cues and British/Commonwealth forms. Invented names; the cue phrases are
+# everyday social-history wording (common practice).
+CUED = [
+    ("He is a line cook at The Quillan Arms.", {("The Quillan Arms", "ORGANIZATION")}),  # after a job
+    ("Church: Grace Hollow Fellowship, supportive.", {("Grace Hollow Fellowship", "ORGANIZATION")}),
+    ("Works for Tandry Brothers part time.", {("Tandry Brothers", "ORGANIZATION")}),
+    ("Employer: Quillfeather", {("Quillfeather", "ORGANIZATION")}),  # a field label, no suffix
+    ("Works for Dr. Ashby part time.", set()),  # a person, left to the name detectors
+    ("Daycare at\nLittle Wrens Learning Centre.", {("Little Wrens Learning Centre", "ORGANIZATION")}),
+    ("GP: Riverbend Surgery, Haddow Lane.", {("Riverbend Surgery", "FACILITY")}),  # UK GP practice
+    ("Seen in General Surgery clinic.", set()),  # a specialty, not a practice
+    ("Non-smoker. Works as a nail technician.", set()),  # a run never crosses a sentence end
+    ("ORRIN VALE HIGHWAY DEPARTMENT", {("ORRIN VALE HIGHWAY DEPARTMENT", "ORGANIZATION")}),
+    ("Seen in the Emergency Department today.", set()),
+    ("Transferred to Level II Trauma Center.", set()),  # a level, not a place
+]
+
+
+@pytest.mark.parametrize(("text", "expected"), CUED, ids=[c[0][:30] for c in CUED])
+def test_cued_and_commonwealth(text: str, expected: set[tuple[str, str]]) -> None:
+    assert found(text) == expected
+
+
+def test_english_words_are_lower_case_dictionary_entries() -> None:
+    from pathlib import Path
+
+    from deid.detectors.organizations import DICT_PATH, derive_english_words, english_words
+
+    words = english_words()
+    # Debian's wamerican writes common words in lower case and proper nouns capitalised.
+    assert {"controller", "reply", "church"} <= words
+    assert "london" not in words and "english" not in words
+    if Path(DICT_PATH).exists():  # the list is only needed to regenerate
+        assert frozenset(derive_english_words()) == words

@@ -69,3 +69,25 @@ def test_recognizer_metadata_and_entities() -> None:
     assert [(text[r.start : r.end], r.entity_type) for r in results] == [("welder", "PROFESSION")]
     assert results[0].recognition_metadata["recognizer_name"] == "professions.v1/work"
     assert ProfessionRecognizer().analyze(text, ["NAME"], None) == []
+
+
+# Round 2: occupations in apposition to a named relative, in signatures, in capitals,
+# after "Work:", and abbreviations. Invented sentences (common practice in social history).
+MORE = [
+    ("Father: Tomas Ekwueme, long-haul truck driver for a haulier.", {"long-haul truck driver"}),
+    ("Partner\tIngrid Solheim (dairy herd manager, a cooperative)", {"dairy herd manager"}),
+    ("Mother: Rosa Ibarra (Spanish interpreter declined)", set()),  # no job in apposition
+    ("Ana Ruiz | dental hygienist, Kestrel Dental Group", {"dental hygienist"}),
+    ("Ana Ruiz, nurse practitioner, called back.", set()),  # a care-team signature
+    ("Mom works nights as a CNA at the care home.", {"CNA"}),
+    ("ID: 41 y/o married F, school librarian at a primary school.", {"school librarian"}),
+    ("MR. DOE IS A 58-YEAR-OLD CIVIL ENGINEER WITH THE COUNTY.", {"CIVIL ENGINEER"}),
+    ("Work: was forklift operator until 2020.", {"forklift operator"}),
+    ("Patient: Ann Roe, 19 F, student; lives with parents.", {"student"}),
+    ("She is a 45-year-old teacher.", {"teacher"}),  # the age is not part of the job
+]
+
+
+@pytest.mark.parametrize(("text", "expected"), MORE, ids=[c[0][:30] for c in MORE])
+def test_round_two_cases(text: str, expected: set[str]) -> None:
+    assert found(text) == expected

@@ -107,3 +107,26 @@ def test_real_model_through_the_engine() -> None:
     assert [(s.text_in(Note("n", text)), s.label, s.source) for s in spans] == [
         ("John Smith", "NAME", "spacy_ner.v1")
     ]
+
+
+# Round 2: pieces that nothing shows to be a name. Invented sentences; spaCy's small model
+# labels such words ORG or GPE in practice (common practice: sentence-initial capitals,
+# lab abbreviations and brand spellings carry no evidence of a name).
+UNSUPPORTED = [
+    ("Controller: two puffs daily.", [("Controller", "ORG")], set()),  # an ordinary English word
+    ("Serial Hb q6h overnight.", [("Hb", "ORG")], set()),  # three letters or fewer
+    ("Today TcB 8.1 on day 4.", [("TcB", "ORG")], set()),  # mixed case
+    ("Grafts were LIMA-LAD and SVG-OM.", [("LIMA-LAD", "ORG")], set()),  # joined abbreviations
+    ("PRIVACY OFFICE - ACCESS REVIEW", [("PRIVACY OFFICE", "ORG")], set()),  # a header of words
+    ("Workstation IP logged.", [("Workstation IP", "GPE")], set()),  # a word beside a code
+    ("Prior L Bell's palsy in 2015.", [("L Bell", "ORG")], {("Bell", "ORGANIZATION")}),  # side trimmed
+    # names keep: an unlisted invented word, a listed country, a multi-word name
+    ("Referred by Quarrendon for review.", [("Quarrendon", "ORG")], {("Quarrendon", "ORGANIZATION")}),
+    ("Trip to Japan last year.", [("Japan", "GPE")], {("Japan", "COUNTRY")}),
+    ("Insured by Bluewick Mutual Group.", [("Bluewick Mutual Group", "ORG")], {("Bluewick Mutual Group", "ORGANIZATION")}),
+]
+
+
+@pytest.mark.parametrize(("text", "ents", "expected"), UNSUPPORTED, ids=[c[0][:30] for c in UNSUPPORTED])
+def test_unsupported_pieces(text: str, ents: list[tuple[str, str]], expected: set[tuple[str, str]]) -> None:
+    assert run(text, ents) == expected
