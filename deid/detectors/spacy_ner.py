@@ -201,6 +201,36 @@ def _unsupported(text: str, s: int, e: int, doc: object = None) -> bool:
     return piece.isupper() and all(ordinary(w) for w in words)
 
 
+def _unlikely_person(text: str, s: int, e: int) -> bool:
+    """True for a PERSON piece that nothing shows to be a name.
+
+    One word is refused when it is two letters or fewer, in mixed case or a
+    hyphenated code ("TcB", "NT-proBNP"), or an ordinary English word that is
+    in no first- or last-name list ("Chart", "Sleeps"). Several words in
+    capitals are refused when all are ordinary English and not all are names
+    ("CHART REVIEW", "WILL DISCUSS"); "BILL LONG" stays.
+    """
+    from deid.detectors.name_lists import is_first_name, is_last_name
+    from deid.detectors.organizations import english_words
+
+    def named(word: str) -> bool:
+        return is_first_name(word) or is_last_name(word)
+
+    words = [w.strip(".,'\u2019") for w in text[s:e].split()]
+    words = [w for w in words if w]
+    if not words:
+        return True
+    english = english_words()
+    if len(words) == 1:
+        word = words[0]
+        if len(word) <= 2 or _HYPHEN_CODE.match(word) or any(_CAMEL.match(p) for p in word.split("-")):
+            return True
+        return not named(word) and word.lower() in english
+    if text[s:e].isupper():
+        return all(w.lower() in english for w in words) and not all(named(w) for w in words)
+    return False
+
+
 def map_label(spacy_label: str, piece: str) -> str | None:
     """Our label for a cleaned piece spaCy labelled ``spacy_label`` (None: drop)."""
     last = piece.split()[-1].lower().rstrip(".,") if piece.split() else ""
@@ -260,6 +290,8 @@ class SpacyEntityRecognizer(EntityRecognizer):
                 if label is None or label not in wanted or ((label != "NAME" or header) and _generic(piece)):
                     continue  # a person's name in capitals or before ":" is checked too ("DISCHARGE SUMMARY")
                 if label != "NAME" and _unsupported(text, trimmed[0], trimmed[1], nlp_artifacts.tokens):
+                    continue
+                if label == "NAME" and _unlikely_person(text, trimmed[0], trimmed[1]):
                     continue
                 score = SCORES[label]
                 if label == "NAME" and len(piece.split()) == 1:

@@ -130,3 +130,31 @@ UNSUPPORTED = [
 @pytest.mark.parametrize(("text", "ents", "expected"), UNSUPPORTED, ids=[c[0][:30] for c in UNSUPPORTED])
 def test_unsupported_pieces(text: str, ents: list[tuple[str, str]], expected: set[tuple[str, str]]) -> None:
     assert run(text, ents) == expected
+
+
+@pytest.mark.parametrize(
+    ("piece", "refused"),
+    [
+        # Ordinary English words in no name list (English: Debian's wamerican list; names: the 1990 US
+        # Census and Faker's locale lists) are not taken as people when spaCy calls them PERSON.
+        ("Chart", True),
+        ("Sleeps", True),
+        ("TcB", True),  # mixed case: an abbreviation, not a name (common practice)
+        ("NT-proBNP", True),
+        ("Cr", True),
+        ("CHART REVIEW", True),
+        ("WILL DISCUSS", True),
+        # Names stay, even when they are also words.
+        ("Hope", False),
+        ("Brown", False),
+        ("BILL LONG", False),
+        ("Harold Quimby", False),
+        ("Okonkwo", False),
+    ],
+)
+def test_unlikely_person(piece: str, refused: bool) -> None:
+    from deid.detectors.spacy_ner import _unlikely_person
+
+    text = f"Seen with {piece} today."
+    start = text.index(piece)
+    assert _unlikely_person(text, start, start + len(piece)) is refused
