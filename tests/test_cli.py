@@ -168,3 +168,21 @@ def test_evaluate_bad_gold_is_a_usage_error_naming_file_and_line(tmp_path: Path)
     code, _, err = invoke("evaluate", str(bad), "-o", str(tmp_path / "r"))
     assert code == EXIT_USAGE
     assert "gold.jsonl:1" in err and "abc" not in err
+
+
+def test_roster_values_are_removed_in_the_variants_clinicians_write(tmp_path: Path) -> None:
+    # Invented roster and note; the note writes the known values in other shapes than the roster.
+    roster = tmp_path / "roster.csv"
+    roster.write_text("patient_id,first_name,last_name,mrn,dob\np1,Odalys,Brennecke,0047731,1950-03-04\n")
+    src = tmp_path / "notes.jsonl"
+    text = "brennecke, odalys seen. mrn 47731. born 3/4/1950. Mrs Brennecke's son called."
+    src.write_text(json.dumps({"note_id": "a", "patient_id": "p1", "note_date": "2020-01-02", "text": text}) + "\n")
+    key = tmp_path / "k.key"
+    invoke("keygen", "-o", str(key))
+    code, _, err = invoke("run", str(src), "-o", str(tmp_path / "o"), "--key", str(key), "--roster", str(roster))
+    assert code == 0, err
+    out = json.loads((tmp_path / "o" / "notes.jsonl").read_text())["text"].lower()
+    for value in ("brennecke", "odalys", "47731", "3/4/1950"):
+        assert value not in out
+    spans = [json.loads(x) for x in (tmp_path / "o" / "spans.jsonl").read_text().splitlines()]
+    assert any(s["detector"].startswith("roster.v1/") for s in spans)
