@@ -166,6 +166,19 @@ _LOOKALIKES = [
     "Lives on disability; flat affect; 2 units PRBC; suite of tests.",
     "L5 S1 disc; T2 weighted MRI; documented in MAR; dec BS at bases.",
     "f/u apt 2 weeks; RR 2 breaths above baseline; lots of questions.",
+    # Clinical vocabulary shaped like the id_other catch-alls (lab names, variants, codes).
+    "HbA1c 7.2%, SpO2 94%, CD4 350, B12 250, T2DM, COVID-19 positive, H1N1, CD138.",
+    "BRAF V600E mutation; JAK2 V617F positive; EGFR L858R; KRAS G12C; rs429358.",
+    "MTHFR C677T heterozygous; prothrombin G20210A carrier; CYP2C19 poor metabolizer.",
+    "ICD-10 E11.9 and I50.32; CPT 99214 billed; NDC 0002-8215-01; HCPCS J1885.",
+    "Metformin 500mg bid, 1000mL NS, insulin U-500, CA125 35, CA 19-9 40, 1064nm laser.",
+    "P2Y12 inhibitor; HLA-B*5701 negative; mRNA-1273 dose; BNT162b2 booster.",
+    "Meds at 0800 1200 1600 and 2000; glucose 142 156 188 201; turns 0600-1400-2200.",
+    "Platelets 250 000/uL; 1 500 000 copies; fluid 1500-2000 mL; 2019-2020 season; 1990s.",
+    "Lesion 1.4x1.1cm; 3x4x5 cm mass; Ki-67 30%; PD-L1 SP263 TPS 50%; GA 39w2d.",
+    "Abd soft NT ND; SA node; WA 2 weeks; NSW unknown; T12 L1; C56 ovary.",
+    "Grade 3 at T11-L2; ECOG 1; NYHA II; CKD3a; eGFR 45; x1000 field; 101st day.",
+    "Ninety minutes later; HR ninety; Phase 3 trial; 3rd stage of labour; County Hospital.",
 ]
 
 
@@ -180,3 +193,70 @@ def test_clinical_lookalikes_leave_no_span(text: str) -> None:
             if spec.label not in {"FACILITY", "NAME", "ORGANIZATION", "PROFESSION"}
             and not suppressor.suppresses(note, Span(s, e, spec.label, spec.score, "regex.v1/t"))]
     assert left == []
+
+
+def _covered_by_patterns(text: str) -> set[int]:
+    """Characters of ``text`` inside a pattern span that scores at the default policy threshold (0.35)."""
+    from deid.detectors.clinical_numbers import make_clinical_numbers
+    from deid.model import Note, Span
+
+    suppressor = make_clinical_numbers()
+    note = Note("n1", text, patient_id="p1")
+    chars: set[int] = set()
+    for recognizer in RECOGNIZERS.values():
+        for r in recognizer.analyze(text, []):
+            span = Span(r.start, r.end, r.entity_type, r.score, recognizer.source)
+            if r.score >= 0.35 and not suppressor.suppresses(note, span):
+                chars.update(range(r.start, r.end))
+    return chars
+
+
+# National numbers of other countries, each valid for python-stdnum (check digits and
+# layout): some pattern entry must cover the whole number in an invented sentence.
+_NATIONAL_IDS = [
+    ("Aadhaar 2345 6789 0124 on file", "2345 6789 0124", "stdnum.in_.aadhaar"),
+    ("PAN ABCPD1234F for the claim", "ABCPD1234F", "stdnum.in_.pan"),
+    ("SIN 130 692 544 supplied", "130 692 544", "stdnum.ca.sin"),
+    ("TFN 123 456 782 supplied", "123 456 782", "stdnum.au.tfn"),
+    ("PPS number 1234567T recorded", "1234567T", "stdnum.ie.pps"),
+    ("ID number 800101 5009 087 checked", "800101 5009 087", "stdnum.za.idnr"),
+    ("Old record 8001015009087 merged", "8001015009087", "stdnum.za.idnr"),
+    ("NHS No 943 476 5919 on the letter", "943 476 5919", "stdnum.gb.nhs"),
+]
+
+
+@pytest.mark.parametrize(("text", "value", "module"), _NATIONAL_IDS)
+def test_national_ids_of_other_countries_are_found(text: str, value: str, module: str) -> None:
+    import importlib
+
+    assert importlib.import_module(module).is_valid(value)  # the example itself is well formed
+    start = text.index(value)
+    assert set(range(start, start + len(value))) <= _covered_by_patterns(text)
+
+
+# Phone numbers as written in other countries; the phonenumbers library (libphonenumber
+# metadata) must accept each as a valid number of its region, and a pattern entry must cover it.
+_WORLD_PHONES = [
+    ("Landline (02) 5550 1234 after six", "(02) 5550 1234", "AU"),
+    ("Mobile 0412 345 678, call first", "0412 345 678", "AU"),
+    ("Work 03 9555 0123 weekdays", "03 9555 0123", "AU"),
+    ("Freecall 1800 555 123 for help", "1800 555 123", "AU"),
+    ("Office 021 555 0100 in town", "021 555 0100", "ZA"),
+    ("Ring me on 01 555 0100 later", "01 555 0100", "IE"),
+    ("Son 087 555 0123 is aware", "087 555 0123", "IE"),
+    ("Brother 098765 43210 informed", "098765 43210", "IN"),
+    ("Home 020 2555 0100 evenings", "020 2555 0100", "IN"),
+    ("Clinic 0161 496 0000 booked", "0161 496 0000", "GB"),
+    ("Sister +61 2 5550 1234 abroad", "+61 2 5550 1234", None),
+    ("Son +1-604-555-0123 updated", "+1-604-555-0123", None),
+    ("Aunt +27 21 555 0100 called", "+27 21 555 0100", None),
+    ("Cousin +91 98765 43210 texted", "+91 98765 43210", None),
+    ("GP +353 1 555 0100 faxed", "+353 1 555 0100", None),
+]
+
+
+@pytest.mark.parametrize(("text", "value", "region"), _WORLD_PHONES)
+def test_world_phone_numbers_are_found(text: str, value: str, region: str | None) -> None:
+    assert phonenumbers.is_valid_number(phonenumbers.parse(value, region))
+    start = text.index(value)
+    assert set(range(start, start + len(value))) <= _covered_by_patterns(text)
