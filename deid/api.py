@@ -206,8 +206,6 @@ def scan(
     summary = _process(Path(input_path), out, spec, columns=columns or ColumnMap(), manifest=manifest,
                        input_format=input_format, output_format=None, workers=workers, batch_size=batch_size,
                        keep_originals=keep_originals, progress=progress, spans_path=spans_path)
-    stem = spans_path.stem
-    summary.files["rejects"] = out / "rejects.jsonl"
-    summary.files["manifest"] = out / f"{stem}.run.json"
+    summary.files["manifest"] = out / f"{spans_path.stem}.run.json"
     write_manifest(summary.files["manifest"], _manifest(summary, spec, {"command": "scan", "input": str(input_path)}))
     return summary

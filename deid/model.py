@@ -43,33 +43,12 @@ LABELS: tuple[str, ...] = (
     "ID_OTHER",
 )
 
-#: Labels that stand for a Safe Harbor identifier category. STATE and COUNTRY
-#: are not removed by Safe Harbor (only geographic units smaller than a state),
-#: FACILITY, ORGANIZATION and PROFESSION are quasi-identifiers.
-SAFE_HARBOR_LABELS: frozenset[str] = frozenset(
-    {
-        "NAME",
-        "DATE",
-        "AGE",
-        "STREET",
-        "CITY",
-        "COUNTY",
-        "ZIP",
-        "PHONE",
-        "FAX",
-        "EMAIL",
-        "URL",
-        "IP",
-        "SSN",
-        "MRN",
-        "HEALTH_PLAN",
-        "ACCOUNT",
-        "LICENSE",
-        "VEHICLE",
-        "DEVICE",
-        "ID_OTHER",
-    }
-)
+#: Labels outside Safe Harbor's identifier list: STATE and COUNTRY (only units
+#: smaller than a state must go) and the quasi-identifiers FACILITY,
+#: ORGANIZATION and PROFESSION. Every other label stands for a Safe Harbor
+#: identifier category.
+NON_SAFE_HARBOR_LABELS: frozenset[str] = frozenset({"STATE", "COUNTRY", "FACILITY", "ORGANIZATION", "PROFESSION"})
+SAFE_HARBOR_LABELS: frozenset[str] = frozenset(LABELS) - NON_SAFE_HARBOR_LABELS
 
 _EMPTY: Mapping[str, Any] = MappingProxyType({})
 
