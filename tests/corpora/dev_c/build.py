@@ -1,65 +1,19 @@
-"""Build the blind labelled corpus from ``source/*.md``.
+"""Build the third development corpus (``dev_c``; written as a blind set) from ``source/*.md``.
 
-Same markup, outputs and checks as ``demo_notes/build.py``, which is loaded
-from its file path and reused unchanged, so the two corpora can never drift
-apart in format. Outputs land next to this script: ``gold.jsonl``,
-``notes.jsonl``, ``manifest.csv`` (no per-note ``.txt`` folder).
+Outputs next to this script: ``gold.jsonl``, ``notes.jsonl``, ``manifest.csv``.
 
-This corpus is for scoring only; see README.md.
-
-Run:  PYTHONPATH=/work/main python tests/corpora/blind/build.py [--strict]
+Run:  python tests/corpora/dev_c/build.py [--strict]
 """
 
 from __future__ import annotations
 
-import argparse
-import importlib.util
 import sys
 from pathlib import Path
-from types import ModuleType
 
 HERE = Path(__file__).resolve().parent
-REPO = HERE.parents[2]
+sys.path.insert(0, str(HERE.parent))
 
-
-def _load_demo_builder() -> ModuleType:
-    """Import ``demo_notes/build.py`` by path (it is a script, not a package module)."""
-    path = REPO / "demo_notes" / "build.py"
-    spec = importlib.util.spec_from_file_location("chartveil_demo_build", path)
-    if spec is None or spec.loader is None:  # pragma: no cover - broken checkout
-        raise ImportError(f"cannot load {path}")
-    module = importlib.util.module_from_spec(spec)
-    # dataclasses look their module up in sys.modules while the class is built.
-    sys.modules[spec.name] = module
-    spec.loader.exec_module(module)
-    return module
-
-
-def main(argv: list[str] | None = None) -> int:
-    """Build the corpus; return an exit code (2 on a source problem)."""
-    parser = argparse.ArgumentParser(description="Build the blind chartveil corpus.")
-    parser.add_argument("--strict", action="store_true", help="also fail on consistency warnings")
-    args = parser.parse_args(argv)
-    if str(REPO) not in sys.path:
-        sys.path.insert(0, str(REPO))
-    demo = _load_demo_builder()
-    try:
-        notes = demo.load_sources(HERE / "source")
-        problems = [p for n in notes for p in demo.lint(n)]
-        if problems and args.strict:
-            raise demo.BuildError("\n".join(problems))
-        demo.write_outputs(notes, HERE, txt_dir=False)
-    except demo.BuildError as exc:
-        print(f"build failed: {exc}", file=sys.stderr)
-        return 2
-    for p in problems:
-        print(f"warning: {p}", file=sys.stderr)
-    counts = demo.label_counts(notes)
-    patients = len({n.patient_id for n in notes})
-    print(f"{len(notes)} notes, {patients} patients, {sum(counts.values())} spans")
-    print(", ".join(f"{k}={v}" for k, v in counts.items()))
-    return 0
-
+from corpus_build import build  # noqa: E402  (a sibling script, found through the path above)
 
 if __name__ == "__main__":
-    sys.exit(main())
+    sys.exit(build(HERE, "Build the dev_c chartveil corpus."))
