@@ -16,6 +16,7 @@ from collections.abc import Iterator
 
 from deid.detectors.name_lists import is_common_word, is_english_word, is_first_name, is_last_name
 from deid.detectors.name_triggers import WORD, Triggers, case_mode, line_mode, name_before, walk_name
+from deid.detectors.propagate import abbreviations
 
 Hit = tuple[int, int, float, str]
 
@@ -157,7 +158,11 @@ def role_hits(text: str, t: Triggers) -> Iterator[Hit]:
     for m in t.role_initials_re.finditer(text):
         ini = m.group("ini").lower()
         if (
-            ini not in t.signature_non_names
+            # "seen by ENT": after a by-phrase capitals are as often a service as initials; after a
+            # role word ("Reader 1 SL") they are initials even when they spell an abbreviation.
+            not (" by" in m.group().lower() and ini.upper() in abbreviations())
+            and ini not in t.signature_non_names
+            and ini not in t.cue_words  # "SEEN BY DR JONES": a title, not initials
             and ini not in t.credentials
             and not re.match(r"[ \t]*\d", text[m.end() :])
         ):

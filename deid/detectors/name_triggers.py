@@ -30,6 +30,7 @@ from deid.detectors.name_lists import (
     is_last_name,
     name_frequency,
 )
+from deid.detectors.organizations import english_words
 from deid.errors import ConfigError
 from deid.resources import data_file
 
@@ -159,10 +160,10 @@ def load_triggers(path: Path | None = None) -> Triggers:
             re.IGNORECASE,
         ),
         role_paren_re=re.compile(rf"(?<![\w/])(?:{roles})[ \t]*\([ \t]*", re.IGNORECASE),
-        # "Cytotechnologist KB", "reader 2 TW": initials in capitals after a role.
+        # "Cytotechnologist KB", "reader 2 TW", "counsellor JMcK": initials after a role.
         role_initials_re=re.compile(
             rf"(?<![\w/])(?i:{alternation(lists['initial_roles'])})(?:[ \t]+\d{{1,2}})?[ \t]*:?[ \t]+"
-            rf"(?P<ini>[A-Z]{{2,3}})(?![\w'’-])"
+            rf"(?P<ini>[A-Z]{{2,3}}|[A-Z](?:Mc|Mac)[A-Z]{{1,2}})(?![\w'’-])"
         ),
         role_name_re=re.compile(rf"(?<![\w/])(?i:{alternation(lists['initial_roles'])})[ \t]+(?=[A-Z])"),
         greeting_re=re.compile(
@@ -298,6 +299,7 @@ def walk_name(text: str, pos: int, mode: str, strength: str, t: Triggers | None 
     """
     t = t or default_triggers()
     end, count, first_like, i, comma, lead_first = pos, 0, False, pos, False, False
+    carried = False  # the previous word counted as a first name only by the run it is in
     while count < 4:
         m = _TOKEN.match(text, i)
         if m is None:
@@ -325,8 +327,15 @@ def walk_name(text: str, pos: int, mode: str, strength: str, t: Triggers | None 
             continue
         elif mode == "mixed" and count and len(tok) > 1 and tok.isupper() and text[m.start() - 2].islower():
             break  # "Chukwudi NHS": capitals after a capitalised name word start something else
+        elif count == 0 and _bare_possessive(tok, mode, strength):
+            return m.end() - 1  # "granddaughter mackenzies wedding": dictation drops the apostrophe
+        elif carried and is_inflected_word(tok):
+            break  # "doctor min jun seo gave": a verb ends a name carried on without case
         elif accept_word(tok, mode, strength, count > 0 and first_like, t):
-            first_like = is_first_name(tok)
+            # NOTE: without case ("hyun woo park") a run opened by a first name goes on while
+            # the words are census or foreign names; with case, the case decides instead.
+            carried = mode != "mixed" and count > 0 and first_like and not is_first_name(tok)
+            first_like = is_first_name(tok) or carried
             lead_first = lead_first or count == 0 and first_like
             end, count = m.end(), count + 1
         else:
@@ -345,6 +354,20 @@ def walk_name(text: str, pos: int, mode: str, strength: str, t: Triggers | None 
     if count == 1 and end - pos <= 2 and strength == "weak":
         return pos
     return end
+
+
+def _bare_possessive(tok: str, mode: str, strength: str) -> bool:
+    """A lower-case first name with a possessive "s" but no apostrophe, right after a relation or title.
+
+    Speech recognition writes "his daughter marias car"; the stem must be a
+    census first name that is no everyday word, and the whole token no dictionary word.
+    """
+    if mode != "lower" or strength not in ("relation", "title") or not tok.islower() or not tok.endswith("s"):
+        return False
+    stem = tok[:-1]
+    if is_first_name(tok) or is_last_name(tok):
+        return False  # "james", "davis"
+    return len(stem) > 2 and is_first_name(stem) and not is_common_word(stem) and tok not in english_words()
 
 
 def _quoted_name(text: str, m: re.Match[str], mode: str, strength: str, t: Triggers) -> int:

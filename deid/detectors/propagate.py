@@ -19,11 +19,14 @@ from __future__ import annotations
 import bisect
 import re
 from collections.abc import Iterable, Sequence
+from functools import lru_cache
 
 from deid.detectors.base import source_name
 from deid.detectors.name_lists import is_common_word, is_english_word, is_first_name, is_last_name
 from deid.detectors.name_triggers import case_mode, default_triggers, line_mode, name_before, walk_name
 from deid.model import Note, Span
+from deid.detectors.organizations import english_words, org_lists
+from deid.resources import data_file
 
 NAME = "propagate.v1"
 #: Labels whose values are not propagated: dates and ages recur by chance; states,
@@ -33,6 +36,11 @@ ID_LABELS = frozenset(
     {"MRN", "SSN", "PHONE", "FAX", "ACCOUNT", "HEALTH_PLAN", "LICENSE", "VEHICLE", "DEVICE", "ID_OTHER"}
 )
 _SEP = r"[\s\-./]?"
+#: Labels whose multi-word values also travel as their initials ("Kestrel Heart Institute" -> "KHI").
+INITIALISM_LABELS = frozenset({"FACILITY", "ORGANIZATION"})
+#: Words left out of an initialism, as organisations write them ("Bank of X" -> "BX").
+_INITIALISM_SKIP = frozenset({"of", "the", "and", "&", "for", "at", "in", "on"})
+ABBREVIATION_FILES = ("name_abbreviations_clinical.txt", "name_abbreviations_regions.txt")
 
 #: One search entry: (regex, case-sensitive?, label, score, sort key).
 Entry = tuple[str, bool, str, float, int]
@@ -113,6 +121,89 @@ def _id_entries(label: str, value: str, score: float) -> list[Entry]:
     return [(lead + body, False, label, score, len(value))]
 
 
+@lru_cache(maxsize=1)
+def abbreviations() -> frozenset[str]:
+    """Capitalised abbreviations an initialism must not be carried as ("CT", "ICU", "NHS", "OR")."""
+    words: set[str] = set()
+    for name in ABBREVIATION_FILES:
+        for line in data_file(name).read_text(encoding="utf-8").splitlines():
+            if not line.startswith("#"):
+                words.update(w.upper() for w in line.split())
+    return frozenset(words)
+
+
+#: Province and state codes outside the US (Canada Post; Australia Post), written in capitals.
+_OTHER_REGION_CODES = (
+    "AB BC MB NB NL NS NT NU ON PE QC SK YT ACT NSW QLD SA TAS VIC WA"  # common practice
+)
+
+
+def derive_region_abbreviations() -> list[str]:
+    """US state and territory postal codes (the `us` package) and Canadian/Australian codes.
+
+    They stand in capitals for a place ("OR", "IN", "ON", "NSW"), not an institution.
+    """
+    import us  # only at derivation time
+
+    words = {s.abbr for s in us.states.STATES_AND_TERRITORIES} | set(_OTHER_REGION_CODES.split())
+    return sorted(words)
+
+
+def write_region_abbreviations() -> None:
+    """Regenerate ``deid/data/name_abbreviations_regions.txt``."""
+    header = (
+        "# US state and territory postal codes (`us` package) and Canadian and Australian\n"
+        "# province/state codes, derived by deid.detectors.propagate.derive_region_abbreviations;\n"
+        "# regenerate, do not edit.\n"
+    )
+    data_file(ABBREVIATION_FILES[1]).write_text(header + "\n".join(derive_region_abbreviations()) + "\n", encoding="utf-8")
+
+
+def _type_word_count(words: list[str]) -> int:
+    """How many trailing words name the kind of place ("Clinic", "Health Plan", "Inc")."""
+
+    low = tuple(w.lower().rstrip(".") for w in words)
+    suffixes = org_lists().suffixes
+    k = next((k for k in (3, 2, 1) if len(low) > k and low[-k:] in suffixes), 0)
+    return k or int(low[-1] in _facility_words())
+
+
+@lru_cache(maxsize=1)
+def _facility_words() -> frozenset[str]:
+    text = data_file("facility_words.txt").read_text(encoding="utf-8")
+    return frozenset(ln.strip().lower() for ln in text.splitlines() if ln.strip() and not ln.startswith("#"))
+
+
+def initialisms(value: str) -> list[str]:
+    """Initials a found institution name is also written as, longest first.
+
+    The first letters of its capitalised words, skipping "of", "the", "and",
+    "&" (both "RFC" for "Rooiberg Fertility Clinic" and, with the type word
+    dropped, "RF"). Only 2-6 letters, and never a listed abbreviation or an
+    everyday word, since "ED" or "CAT" in a note is almost never the institution.
+
+    >>> initialisms("Kestrel Heart Institute")
+    ['KHI', 'KH']
+    >>> initialisms("Intensive Care Unit")
+    []
+    """
+    words = [w for w in re.findall(r"[^\W\d_][\w'’.-]*|&", value) if w.lower() not in _INITIALISM_SKIP]
+    if len(words) < 2 or not all(w[0].isupper() for w in words):
+        return []
+    drop = _type_word_count(words)
+    forms = ["".join(w[0] for w in words)]
+    if drop and len(words) - drop >= 2:
+        forms.append("".join(w[0] for w in words[: len(words) - drop]))
+    # A credential ("LSN", "RN") is what a wrongly found "Licensed School Nurse" stands for.
+    stop = abbreviations() | {c.upper() for c in default_triggers().credentials}
+    if forms[0].upper() in stop:
+        return []  # "Intensive Care Unit" spells "ICU": a generic term, no institution
+    return [
+        f.upper() for f in forms
+        if 2 <= len(f) <= 6 and f.upper() not in stop and f.lower() not in english_words()
+    ]
+
+
 def entries_for(label: str, value: str, score: float = 0.9) -> list[Entry]:
     """The search entries that one found value contributes (empty for labels never propagated)."""
     value = value.strip()
@@ -124,7 +215,11 @@ def entries_for(label: str, value: str, score: float = 0.9) -> list[Entry]:
         return _id_entries(label, value, score)
     if " " not in value and (is_english_word(value) or is_common_word(value)) and not value[0].isdigit():
         return []  # a single everyday word found as a CITY or FACILITY: too risky to spread
-    return [(flex_pattern(value), False, label, score, len(value))]
+    entries: list[Entry] = [(flex_pattern(value), False, label, score, len(value))]
+    if label in INITIALISM_LABELS:
+        # Case-sensitive and whole-token (see compile_alternation): only "KHI", never "khi" or "KHIx".
+        entries += [(re.escape(f), True, label, score * 0.85, len(f)) for f in initialisms(value)]
+    return entries
 
 
 def propagate(note: Note, spans: Sequence[Span], extra_values: Iterable[tuple[str, str]] = ()) -> list[Span]:

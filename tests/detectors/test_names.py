@@ -99,6 +99,14 @@ RECALL = [
     ("Transplant referral to Okonkwo in nephrology.", ["Okonkwo"]),
     ("Resident T. Wren-Abiodun (PGY-2) present.", ["T. Wren-Abiodun"]),
     ("Cannulated by R. Kasprzak, CCHT", ["R. Kasprzak"]),
+    # Dictation without case or apostrophes (speech-recognition output; common practice).
+    ("anaesthetist doctor min jun seo gave a spinal", ["min jun seo"]),
+    ("she plans surgery after her grandson jaydens graduation", ["jayden"]),
+    ("please have priya at reception book the scan", ["priya"]),
+    ("his daughter rosalind number is on file", ["rosalind"]),
+    # Initials after a role or a by-phrase, including "Mc" initials.
+    ("Stable on tacrolimus, seen by WQT", ["WQT"]),
+    ("Handover given to physio AMcL.", ["AMcL"]),
 ]
 
 
@@ -156,6 +164,11 @@ PRECISION = [
     "sevelamer with meals, cinacalcet 30 mg.",
     "Chaplain: Lutheran; requests hymns.",
     "Treated by E. coli protocol.",
+    # By-phrases and requests before abbreviations or everyday words (common practice).
+    "Seen by ENT and reviewed by PT today.",
+    "checked by RN at 0600",
+    "we have frank concerns; you have mild pain",
+    "his sons car broke down",
 ]
 
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import pytest
 
-from deid.detectors.propagate import propagate
+from deid.detectors.propagate import initialisms, propagate
 from deid.model import Note, Span
 
 
@@ -118,3 +118,46 @@ def test_clinical_shorthand_is_never_carried_as_a_name() -> None:
     text = "Mother Ann Neg seen. GBS neg, HIV neg."
     got = _found(text, [_span(text, "Ann Neg", "NAME")])
     assert "neg" not in [g[0] for g in got]
+
+
+# Initialisms of found institutions. The invented names below are not from any corpus.
+@pytest.mark.parametrize(
+    ("value", "expected"),
+    [
+        # First letters of the capitalised words, then without the type word (common practice).
+        ("Kestrel Heart Institute", ["KHI", "KH"]),
+        ("Bank of Wrenmoor", ["BW"]),  # "of" is skipped
+        ("Pellow & Ashby Inc.", ["PAI"]),  # "PA" is a listed abbreviation (physician assistant)
+        ("Greyhaven Valley Orthopaedic Centre", ["GVOC", "GVO"]),
+        # Listed clinical abbreviations and dictionary words are never carried.
+        ("Intensive Care Unit", []),
+        ("Community Action Team", []),  # "CAT" is an English word
+        ("Emergency Department", []),
+        # One word, lower-case words, or more than six letters give nothing.
+        ("Kestrelford", []),
+        ("Kestrel heart institute", []),
+        ("Alder Birch Cedar Dogwood Elm Fir Gorse", []),
+    ],
+)
+def test_initialisms(value: str, expected: list[str]) -> None:
+    assert initialisms(value) == expected
+
+
+def test_initialism_of_found_facility_is_propagated_as_whole_capital_token() -> None:
+    text = "Admitted to Kestrel Heart Institute. Echo at KHI; khi and KHIS are not it. ICU bed."
+    got = _found(text, [_span(text, "Kestrel Heart Institute", "FACILITY")])
+    assert got == [("KHI", "propagate.v1/FACILITY")]
+
+
+def test_initialism_reaches_the_same_patients_other_notes() -> None:
+    text = "Cycle day 3 scan booked at PWC next week."
+    got = _found(text, [], [("FACILITY", "Pellow Wren Clinic")])
+    assert got == [("PWC", "propagate.v1/FACILITY")]
+    # Names and other labels make no initialisms.
+    assert _found("PWC called.", [], [("NAME", "Pellow Wren Carter")]) == []
+
+
+def test_initialism_never_a_credential() -> None:
+    # A wrongly found "Licensed Vocational Nurse" must not mark the credential "LVN".
+    text = "Licensed Vocational Nurse on duty. - A. Brennock, LVN"
+    assert _found(text, [_span(text, "Licensed Vocational Nurse", "ORGANIZATION")]) == []
