@@ -20,7 +20,7 @@ from deid.io.open import open_reader, open_writer, reason_kind
 from deid.io.side_files import RejectWriter, SpanWriter, write_manifest
 from deid.keys import SecretKey
 from deid.model import LABELS, Note
-from deid.parallel import PipelineSpec, run_batches
+from deid.parallel import PipelineSpec, patient_batches, run_batches
 from deid.pipeline import NoteResult
 from deid.policy import Policy, load_policy
 from deid.provenance import run_fingerprint
@@ -47,12 +47,9 @@ class RunSummary:
 Progress = Callable[[RunSummary], None]
 
 
-def _stream(
-    items: Iterable[Note | NoteRejected], summary: RunSummary, rejects: RejectWriter, batch_size: int
-) -> Iterator[list[Note]]:
-    """Group notes into batches; count and record read-time rejects and duplicate ids."""
+def _accepted(items: Iterable[Note | NoteRejected], summary: RunSummary, rejects: RejectWriter) -> Iterator[Note]:
+    """Pass the readable notes on; count and record read-time rejects and duplicate ids."""
     seen: set[str] = set()
-    batch: list[Note] = []
     for item in items:
         summary.notes_in += 1
         if isinstance(item, NoteRejected):
@@ -62,12 +59,7 @@ def _stream(
             _reject(summary, rejects, NoteRejected(item.note_id, "duplicate note id (an earlier note has the same id)"))
             continue
         seen.add(item.note_id)
-        batch.append(item)
-        if len(batch) >= batch_size:
-            yield batch
-            batch = []
-    if batch:
-        yield batch
+        yield item
 
 
 def _reject(summary: RunSummary, rejects: RejectWriter, rej: NoteRejected) -> None:
@@ -105,7 +97,7 @@ def _process(
     span_writer = SpanWriter(spans_path, keep_originals)
     rejects = RejectWriter(out_dir / "rejects.jsonl")
     try:
-        for results in run_batches(spec, _stream(reader, summary, rejects, batch_size), workers):
+        for results in run_batches(spec, patient_batches(_accepted(reader, summary, rejects), batch_size), workers):
             done: list[Note] = []
             for res in results:
                 _account(res, summary, rejects, span_writer, done)

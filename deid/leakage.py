@@ -19,7 +19,7 @@ from deid.eval.gold import GoldNote, load_gold, load_label_map, load_predictions
 from deid.eval.metrics import EvalResult, evaluate
 from deid.eval.report import summary_text, write_report
 from deid.model import Span
-from deid.parallel import PipelineSpec, run_batches
+from deid.parallel import PipelineSpec, patient_batches, run_batches
 from deid.policy import Policy, load_policy
 from deid.provenance import run_fingerprint
 
@@ -44,10 +44,8 @@ def detect_gold(
     none), whatever the policy says about releases.
     """
     spec = PipelineSpec(dataclasses.replace(policy, missing_patient="own_patient"), None, roster)
-    notes = [g.note for g in gold]
-    batches = [notes[i : i + batch_size] for i in range(0, len(notes), batch_size)]
     out: dict[str, list[Span]] = {}
-    for results in run_batches(spec, batches, workers):
+    for results in run_batches(spec, patient_batches((g.note for g in gold), batch_size), workers):
         for res in results:
             if res.reject is not None:
                 raise InputError(f"gold note {res.note.note_id!r} cannot be processed: {res.reject.reason}")

@@ -50,6 +50,28 @@ def _run(batch: Sequence[Note]) -> list[NoteResult]:
     return _WORKER.process(batch)
 
 
+def patient_batches(notes: Iterable[Note], batch_size: int) -> Iterator[list[Note]]:
+    """Group notes into batches of ``batch_size``, keeping a patient's run of notes together.
+
+    A full batch is held open while the next notes belong to the same patient
+    as its last one (up to four times the batch size), so an export sorted by
+    patient keeps each patient's notes in one batch and propagation between
+    them works. The same input and batch size always give the same batches.
+
+    >>> [len(b) for b in patient_batches([Note(str(i), "x", "p" if i < 3 else str(i)) for i in range(5)], 2)]
+    [3, 2]
+    """
+    batch: list[Note] = []
+    for note in notes:
+        same = bool(batch) and note.patient_id is not None and note.patient_id == batch[-1].patient_id
+        if len(batch) >= batch_size and not (same and len(batch) < 4 * batch_size):
+            yield batch
+            batch = []
+        batch.append(note)
+    if batch:
+        yield batch
+
+
 def run_batches(spec: PipelineSpec, batches: Iterable[Sequence[Note]], workers: int = 1) -> Iterator[list[NoteResult]]:
     """Yield the results of each batch, in input order."""
     if workers <= 1:
