@@ -179,6 +179,16 @@ _LOOKALIKES = [
     "Abd soft NT ND; SA node; WA 2 weeks; NSW unknown; T12 L1; C56 ovary.",
     "Grade 3 at T11-L2; ECOG 1; NYHA II; CKD3a; eGFR 45; x1000 field; 101st day.",
     "Ninety minutes later; HR ninety; Phase 3 trial; 3rd stage of labour; County Hospital.",
+    # Round 3 look-alikes: combination doses, gestational age, British duration fractions,
+    # test scores, three-letter protein variants, post-operative days, counts with a
+    # thousands space, "last 4" durations and everyday counting in words.
+    "Buprenorphine/naloxone 8/2 mg BID; co-amoxiclav 875/125 mg; twin B 36 2/7 wk.",
+    "Abbreviated Mental Test 8/10; 18/12 history of cough; 14/52 pregnant; 30/10 mmHg.",
+    "MYBPC3 c.1504C>T p.(Arg502Trp); CFTR p.Phe508del homozygous.",
+    "POD 1 after repair; POD#2 walking; OR 2.3 for smoking; exam 2 weeks ago.",
+    "Hb 12, Platelets 250 000, WBC 6; transfused unit 2 of PRBC; up in chair 2 hours.",
+    "In the last 4 hours 1200 mL out; last four weeks worse; vaccine lot 12 given.",
+    "One or two tablets, three to four times a day; at 85 he retired; sats at 92 on air.",
 ]
 
 
@@ -258,5 +268,51 @@ _WORLD_PHONES = [
 @pytest.mark.parametrize(("text", "value", "region"), _WORLD_PHONES)
 def test_world_phone_numbers_are_found(text: str, value: str, region: str | None) -> None:
     assert phonenumbers.is_valid_number(phonenumbers.parse(value, region))
+    start = text.index(value)
+    assert set(range(start, start + len(value))) <= _covered_by_patterns(text)
+
+
+# Day-first dates without a year: python-dateutil must read each marked value as a calendar
+# date with dayfirst=True, and Python's datetime must reject the month-first reading (the day,
+# 13-31, is no month), so the value is a date whichever convention the author used.
+@pytest.mark.parametrize(("entry", "value"), [(n, v) for n, v in _marked("DATE") if n == "date_day_month_bare"])
+def test_day_first_examples_are_unambiguous_dates(entry: str, value: str) -> None:
+    import datetime as dt
+
+    day, month = (int(part) for part in value.split("/"))
+    parsed = date_parser.parse(value, dayfirst=True, default=dt.datetime(2024, 1, 1))
+    assert (parsed.day, parsed.month) == (day, month)
+    with pytest.raises(ValueError):
+        dt.date(2024, day, month)
+
+
+_DIGIT_WORDS = {"zero": "0", "oh": "0", "one": "1", "two": "2", "three": "3", "four": "4",
+                "five": "5", "six": "6", "seven": "7", "eight": "8", "nine": "9"}
+
+
+# Telephone numbers dictated one word per digit: the digits they spell must be a possible
+# number for the phonenumbers library (libphonenumber metadata, US region).
+@pytest.mark.parametrize(("entry", "value"), [(n, v) for n, v in _marked("PHONE") if n == "phone_spelled"])
+def test_spelled_phone_examples_spell_possible_numbers(entry: str, value: str) -> None:
+    digits = "".join(_DIGIT_WORDS[w] for w in value.replace(",", " ").replace("-", " ").split())
+    assert phonenumbers.is_possible_number(phonenumbers.parse(digits, "US"))
+
+
+# Identifiers written the round-3 ways must be covered whole by some pattern entry
+# (invented sentences; the shapes are common practice in the named countries).
+_ROUND3_IDS = [
+    ("Medicare 3318 55209 2 / IRN 1 on the card", "3318 55209 2"),  # Australian Medicare, 4-5-1
+    ("Medicare NB 155 509 217 on file", "155 509 217"),  # Canadian provincial card
+    ("chart number 4 4 0 2 1 7 9 dictated", "4 4 0 2 1 7 9"),
+    ("UHID MGH/2022/114420 printed", "MGH/2022/114420"),
+    ("Folder no. GSH 19-004412 at triage", "GSH 19-004412"),
+    ("Acme Medical Scheme no. AMS 22019874 for the claim", "AMS 22019874"),
+    ("Ashby, Walter    Last4 6789    MRN 5512", "6789"),
+    ("2021-03-02 09:14  kdoyle        198.51.100.7   view results", "kdoyle"),
+]
+
+
+@pytest.mark.parametrize(("text", "value"), _ROUND3_IDS)
+def test_round3_identifier_forms_are_covered(text: str, value: str) -> None:
     start = text.index(value)
     assert set(range(start, start + len(value))) <= _covered_by_patterns(text)
