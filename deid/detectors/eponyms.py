@@ -42,6 +42,8 @@ _LOWER = re.compile(r"(?<![\w-])[a-z]+(?![\w-])")
 _TOKEN = re.compile(r"[A-Za-z0-9+/-]+(?:['\u2019][A-Za-z]+)*|[^\sA-Za-z0-9]")
 _POSSESSIVE = re.compile(r"(?:['\u2019]s?|s['\u2019])$")
 _NUMBER = re.compile(r"^\d")
+#: Endings of operation names ("Whipple pancreaticoduodenectomy", "Nissen fundoplication"): common practice.
+_PROCEDURE_ENDINGS = ("ectomy", "ostomy", "otomy", "plasty", "pexy", "plication", "rrhaphy")
 #: Words after which a first word of an ICD description counts as an eponym
 #: ("Down syndrome", "Lyme disease"): common practice in naming diseases.
 _ICD_HEADS = frozenset(
@@ -140,7 +142,7 @@ class EponymSuppressor:
     """Suppressor ``eponyms.v1``: vetoes person/place candidates that are medical eponyms."""
 
     name = "eponyms.v1"
-    labels = frozenset({"NAME", "CITY", "ORGANIZATION", "FACILITY"})
+    labels = frozenset({"NAME", "CITY", "STATE", "ORGANIZATION", "FACILITY"})
 
     def __init__(self, lists: EponymLists | None = None) -> None:
         self.lists = lists or eponym_lists()
@@ -184,9 +186,11 @@ class EponymSuppressor:
         if "standalone" in kinds:
             return True
         possessive = bool(_POSSESSIVE.search(text))
+        if len(after) > 1 and after[0] in ("and", "&", "/", "or") and self.lists.kind(after[1]) is not None:
+            after = after[2:]  # "Ortolani and Barlow negative": the finding follows the second eponym
         words = [w for w in after[:3] if w[:1].isalnum()]
         nxt = words[:2]
-        if nxt and nxt[0] in ctx["head"]:
+        if nxt and (nxt[0] in ctx["head"] or nxt[0].endswith(_PROCEDURE_ENDINGS)):
             return True
         if len(nxt) == 2 and nxt[1] in ctx["head"] and nxt[0] in ctx.get("bridge", ()):
             return True

@@ -40,7 +40,8 @@ from deid.detectors import world_places
 from deid.resources import data_file
 
 NAME = "gazetteer.v1"
-_WORD = re.compile(r"[A-Za-z]+(?:['\u2019][A-Za-z]+)*")
+#: Latin letters with accents count as letters, so "Labé" is one word and never "Lab".
+_WORD = re.compile(r"[A-Za-z\u00c0-\u024f]+(?:['\u2019][A-Za-z\u00c0-\u024f]+)*")
 _GAP_OK = re.compile(r"^(?: |\. ?|-|\.-)$")
 _ABBREVIATIONS = {"Saint": "St", "Fort": "Ft", "Mount": "Mt"}
 #: Postal codes that are also credentials or clinical abbreviations after a
@@ -397,10 +398,17 @@ STREET_WORDS = frozenset(
     ["Street", "St", "Avenue", "Ave", "Road", "Rd", "Drive", "Dr", "Lane", "Ln", "Boulevard", "Blvd", "Way", "Court", "Ct", "Place", "Pl", "Terrace", "Circle", "Highway", "Hwy", "Parkway", "Pkwy", "Square", "Trail", "Suite", "Apt", "Unit", "Close", "Row", "Yard", "Pike", "Run", "Mews", "Walk", "Alley", "Loop", "Path", "Crescent", "Cres", "Cir", "Ter", "Trl", "Pkwy", "Expy", "Fwy", "Route", "Rte"]
 )
 _STATE_ZIP = re.compile(r"(?:^|(?<=\n)|(?<=, )|(?<=[a-z] ))[ \t]*([A-Z]{2})\.?,?[ \t]{0,2}\n?[ \t]{0,2}" + _ZIP + r"(?![\w-])")
+#: After a town in an address: punctuation, a line end, a state code, a ZIP, a four-digit
+#: postcode (Australia, South Africa) or a dash and a PIN code (India); common practice.
+_TOWN_END = r"(?=[ \t]*(?:[,.)\n]|$| [A-Z]{2}\b| " + _ZIP + r"| \d{4}\b| [-\u2013] \d))"
+_TOWN = r"((?:[A-Z][a-z\u00e0-\u00ff]+[ -]){0,2}[A-Z][a-z\u00e0-\u00ff]+)"
 _STREET_LINE = re.compile(
-    r"\b\d+[A-Za-z]? (?:[A-Z][a-z]+ ){1,4}(?:" + "|".join(sorted(STREET_WORDS - {"Suite", "Apt", "Unit"})) + r")\.?"
-    r"(?:,? (?:#|Apt\.? |Suite |Unit )?[A-Z0-9-]{1,5})?(?:, ?| ?\n[ \t]*)"
-    r"((?:[A-Z][a-z]+[ -]){0,2}[A-Z][a-z]+)(?=[ \t]*(?:[,.)\n]|$| [A-Z]{2}\b| " + _ZIP + r"))"
+    r"\b\d+(?:/\d+)?[A-Za-z]?,? (?:[A-Z][a-z]+ ){1,4}(?:" + "|".join(sorted(STREET_WORDS - {"Suite", "Apt", "Unit"})) + r")\.?"
+    r"(?:,? (?:#|Apt\.? |Suite |Unit )?[A-Z0-9-]{1,5})?(?:, ?| ?\n[ \t]*)" + _TOWN + _TOWN_END
+)
+#: A town after a care facility's name on a letterhead line ("Kestrel Health Centre, Dunmore").
+_FACILITY_LINE = re.compile(
+    r"(?:^|\n|[ \t][-\u2013][ \t])[ \t]*(?:[A-Z][\w'\u2019.&-]*[ \t]+){1,6}([A-Za-z]+), " + _TOWN + r"(?=[ \t]*(?:\n|$| [-\u2013] \d| \d{4}\b))"
 )
 _CITY_BEFORE_COUNTY = re.compile(
     r"(?:^|\n)[ \t]*((?:[A-Z][a-z]+[ -]){0,2}[A-Z][a-z]+), (?=(?:[A-Z][a-z]+ ){1,3}(?:County|Parish|Borough)\b)"
@@ -424,13 +432,25 @@ def _state_before_zip(pl: Places, text: str) -> list[tuple[int, int, str, float]
 
 
 def _address_cities(text: str) -> list[tuple[int, int, str, float]]:
-    """Title Case places in address-block slots: after a street, before ", X County"."""
+    """Title Case places in address-block slots: after a street, before ", X County",
+    and after a facility name that ends a letterhead line's first part ("... Clinic, Town")."""
     out = []
     for pattern in (_STREET_LINE, _CITY_BEFORE_COUNTY):
         for m in pattern.finditer(text):
             if m.group(1).split()[-1] not in STREET_WORDS:
                 out.append((m.start(1), m.end(1), "CITY", SCORES["zip"]))
+    care = _facility_words()
+    for m in _FACILITY_LINE.finditer(text):
+        town = m.group(2)
+        if m.group(1).lower() in care and town.split()[-1] not in STREET_WORDS and not all(_ordinary(w) for w in town.split()):
+            out.append((m.start(2), m.end(2), "CITY", SCORES["weak_cue"]))
     return out
+
+
+@lru_cache(maxsize=1)
+def _facility_words() -> frozenset[str]:
+    """Last words of care-facility names (``facility_words.txt``), plus "care" ("Diabetes Care")."""
+    return frozenset(_read_list("facility_words.txt") | {"care"})
 
 
 def _zip_places(pl: Places, text: str) -> list[tuple[int, int, str, float]]:

@@ -38,17 +38,31 @@ CLINICAL_FILE = "clinical_words.txt"
 ENGLISH_FILE = "english_words.txt"
 #: Debian's ``wamerican`` word list (SCOWL, permissive licence), read only when regenerating.
 DICT_PATH = "/usr/share/dict/american-english"
+#: Debian's ``wbritish`` list (SCOWL too): British spellings ("centre", "counselling",
+#: "programme") are ordinary words in Commonwealth notes. Read only when regenerating.
+BRITISH_DICT_PATH = "/usr/share/dict/british-english"
 SCORES = {"suffix": 0.7, "acronym": 0.6, "cue": 0.6}
 #: Titles that start a person's name, never an organisation's ("works for Dr. Roe").
 _TITLES = frozenset({"dr", "dr.", "mr", "mrs", "ms", "miss", "mx", "prof", "doctor", "rev"})
 #: Word endings of medical specialties and services (common practice in English medical naming).
 SPECIALTY_ENDINGS = ("ology", "ologies", "iatry", "iatrics", "ography", "ectomy", "otomy", "oscopy")
-_WORD = re.compile(r"&|[A-Za-z\u00c0-\u024f][A-Za-z\u00c0-\u024f'\u2019.-]*")
+#: A word; capitals joined by "/" stay one word ("OB/GYN").
+_WORD = re.compile(r"&|[A-Za-z\u00c0-\u024f][A-Za-z\u00c0-\u024f'\u2019.-]*(?:/[A-Z][A-Za-z]*)*")
+#: A facility named head first, as in French, Spanish, Italian or German, or "Hospital of ...":
+#: the head, up to two adjectives, a joiner, up to four words, and a capitalised last word
+#: ("Centre de ... de Lyonnel", "Centre hospitalier de Lyonnel").
+_HEAD_FIRST = re.compile(
+    r"\b(?:Centre|Center|Centro|H[oô]pital|Hospital|Clinique|Cl[ií]nica|Institut|Institute|Klinik|Klinikum|Ospedale)"
+    r"[ \t]+(?:[a-z\u00e0-\u00ff]+[ \t]+){0,2}(?:de|du|des|d['\u2019]|di|del|della|da|do|dos|of|für)[ \t]+(?:[\w\u00c0-\u024f'\u2019-]+[ \t]+){0,4}?"
+    r"(?:(?:de|du|des|di|del|da|la|le|the|d['\u2019])[ \t]*)?((?:[A-Z][\w\u00c0-\u024f'\u2019-]+[ \t])*[A-Z][\w\u00c0-\u024f'\u2019-]+)"
+)
 _JOINERS = frozenset({"of", "the", "and", "&", "de", "la", "du", "del", "von", "van"})
 #: Street words that, right after a suffix, show the name is a street ("Hospital Drive").
 _STREET_AFTER = frozenset(
     {"road", "rd", "street", "st", "avenue", "ave", "drive", "dr", "lane", "ln", "way", "court", "ct", "boulevard", "blvd", "pike", "row", "close", "place", "pl", "circle", "highway", "hwy", "parkway", "terrace", "trail"}
 )
+#: A short code after a name ("Lakeshore Dental ID 4410"), which never continues it.
+_CODE = re.compile(r"[A-Z]{1,3}\.?")
 #: Parts of speech that never start a name (spaCy's universal tags).
 _NOT_FIRST = frozenset({"VERB", "AUX", "ADP", "DET", "ADV", "CCONJ", "SCONJ", "PART", "NUM", "INTJ"})
 
@@ -66,6 +80,7 @@ class OrgLists:
     generic: frozenset[str]
     clinical: frozenset[str]
     abbreviations: frozenset[str] = frozenset()  # suffixes listed with their period ("inc.")
+    modifiers: frozenset[tuple[str, ...]] = frozenset()  # suffixes that end a name only at a run's end
 
     def is_header(self, word: str) -> bool:
         """True for department and header words ("SURGICAL", "Pathology"), not mere clinical words."""
@@ -84,12 +99,19 @@ class OrgLists:
 def org_lists() -> OrgLists:
     """The lists, read once per process."""
     suffixes: dict[tuple[str, ...], str] = {}
+    modifiers: set[tuple[str, ...]] = set()
     for line in _lines("org_suffixes.txt"):
-        label, _, phrase = line.partition("\t")
-        suffixes[tuple(w.rstrip(".") for w in phrase.strip().lower().split())] = label.strip()
-    abbreviations = frozenset(w for ln in _lines("org_suffixes.txt") for w in ln.lower().split() if w.endswith("."))
+        label, phrase, *flags = line.split("\t")
+        key = tuple(w.rstrip(".") for w in phrase.strip().lower().split())
+        suffixes[key] = label.strip()
+        if "modifier" in flags:
+            modifiers.add(key)
+    abbreviations = frozenset(
+        w for ln in _lines("org_suffixes.txt") for w in ln.split("\t")[1].lower().split() if w.endswith(".")
+    )
     return OrgLists(
-        suffixes, frozenset(_lines("org_generic_words.txt")), frozenset(_lines(CLINICAL_FILE)), abbreviations
+        suffixes, frozenset(_lines("org_generic_words.txt")), frozenset(_lines(CLINICAL_FILE)), abbreviations,
+        frozenset(modifiers),
     )
 
 
@@ -123,21 +145,23 @@ def english_words() -> frozenset[str]:
     return frozenset(_lines(ENGLISH_FILE))
 
 
-def derive_english_words(path: str = DICT_PATH) -> list[str]:
-    """All-lower-case ASCII words of a system word list (one word a line), sorted."""
-    with open(path, encoding="utf-8") as fh:
-        words = {w.strip() for w in fh}
+def derive_english_words(paths: tuple[str, ...] = (DICT_PATH, BRITISH_DICT_PATH)) -> list[str]:
+    """All-lower-case ASCII words of system word lists (one word a line), merged and sorted."""
+    words: set[str] = set()
+    for path in paths:
+        with open(path, encoding="utf-8") as fh:
+            words.update(w.strip() for w in fh)
     return sorted(w for w in words if w.isascii() and w.isalpha() and w.islower())
 
 
-def write_english_words(path: str = DICT_PATH) -> None:
-    """Regenerate ``deid/data/english_words.txt`` (needs Debian's ``wamerican`` installed)."""
+def write_english_words(paths: tuple[str, ...] = (DICT_PATH, BRITISH_DICT_PATH)) -> None:
+    """Regenerate ``deid/data/english_words.txt`` (needs Debian's ``wamerican`` and ``wbritish``)."""
     header = (
-        "# Lower-case words of Debian's wamerican list (SCOWL, Kevin Atkinson; permissive licence,\n"
-        "# see /usr/share/doc/wamerican/copyright), derived by\n"
+        "# Lower-case words of Debian's wamerican and wbritish lists (SCOWL, Kevin Atkinson; permissive\n"
+        "# licence, see /usr/share/doc/wamerican/copyright), derived by\n"
         "# deid.detectors.organizations.derive_english_words; regenerate, do not edit.\n"
     )
-    data_file(ENGLISH_FILE).write_text(header + "\n".join(derive_english_words(path)) + "\n", encoding="utf-8")
+    data_file(ENGLISH_FILE).write_text(header + "\n".join(derive_english_words(paths)) + "\n", encoding="utf-8")
 
 
 def _runs(text: str) -> list[list[re.Match[str]]]:
@@ -187,7 +211,10 @@ def find_organizations(text: str, doc: object = None, lists: OrgLists | None = N
         best: tuple[int, str, int] | None = None  # (end index, label, suffix length)
         for end in range(len(run), 0, -1):
             for size in (3, 2, 1):
-                if end - size >= 0 and tuple(low[end - size : end]) in lists.suffixes:
+                key = tuple(low[end - size : end])
+                if end < len(run) and key in lists.modifiers and not _CODE.fullmatch(run[end].group()):
+                    continue  # "RECEPTION HEALTH SCREENING", "School Nurse": the suffix modifies the next word
+                if end - size >= 0 and key in lists.suffixes:
                     best = (end, lists.suffixes[tuple(low[end - size : end])], size)
                     break
             if best:
@@ -202,12 +229,16 @@ def find_organizations(text: str, doc: object = None, lists: OrgLists | None = N
         while start < end - size and (lists.is_header(low[start]) or _pos_of(doc, run[start].start()) in _NOT_FIRST):
             start += 1
         name_words = [w for w in low[start : end - size]]
-        if not any(not lists.is_generic(w) for w in name_words):
-            continue
+        if not any(not lists.is_generic(w) for w in name_words) or "to" in name_words:
+            continue  # generic words only, or a heading phrase ("CONSENT TO SURGERY")
         last = run[end - 1]
         keep_period = last.group().lower() in lists.abbreviations
         stop = last.end() if keep_period else last.start() + len(last.group().rstrip("."))
         out.append((run[start].start(), stop, label, SCORES["suffix"], "suffix"))
+    for m in _HEAD_FIRST.finditer(text):
+        final = m.group(1).split()[-1].lower()
+        if final not in english_words() and not lists.is_generic(final):
+            out.append((m.start(), m.end(), "FACILITY", SCORES["suffix"], "head_first"))
     out.extend(_cued(text, doc, lists, out))
     out.extend(_acronyms(text, out))
     return out

@@ -32,11 +32,23 @@ from functools import lru_cache
 from presidio_analyzer import EntityRecognizer, RecognizerResult
 from presidio_analyzer.nlp_engine import NlpArtifacts
 
+from deid.detectors.organizations import english_words, org_lists
 from deid.resources import data_file
 
 NAME = "professions.v1"
 FAKER_FILE = "occupations_faker.txt"
-SCORES = {"label": 0.8, "work": 0.75, "before": 0.7, "after": 0.7, "apposition": 0.7, "signature": 0.65}
+SCORES = {"label": 0.8, "work": 0.75, "before": 0.7, "age": 0.7, "after": 0.7, "apposition": 0.7, "signature": 0.65}
+#: Endings of agent nouns ("lineman", "tester", "machinist", "electrician"): common practice in English
+#: morphology. An unlisted word with one counts as an occupation only after an age or a relative's name.
+_AGENT_ENDINGS = ("er", "or", "ist", "man", "ian", "eer")
+#: After a relative's name, what shows that the lower-case words in brackets or commas are a job
+#: even when unlisted: a phone number ("(police constable, 555-0100)") or an employer
+#: ("(deacon at St Luke's)", "lineman for Ridge Electric").
+_EMPLOYER_OR_PHONE = re.compile(r"[ \t]*(?:,[ \t]*(?:\+|\(\d|\d)|(?:at|for|with)[ \t]+(?:the[ \t]+)?[A-Z])")
+#: Capitals inside a job phrase ("FIFO diesel fitter", "ICU nurse"): an abbreviation of two to six letters.
+_ABBREVIATION = re.compile(r"[A-Z]{2,6}")
+#: Cue kinds strong enough to accept an unlisted agent noun or an abbreviation inside the phrase.
+_OPEN_KINDS = frozenset({"age", "apposition"})
 #: What may follow an occupation in apposition ("Ann Roe, baker, ..."; "... (baker at ...)").
 _APPOSITION_END = re.compile(r"[ \t]*(?:[,;.)|\n]|$|(?:at|for|with|in|of|from|since|until|and|on)\b)")
 #: Endings of clinical staff titles ("cardiologist", "psychiatrist"): common practice in English.
@@ -61,6 +73,7 @@ class OccupationLists:
     label_cues: tuple[re.Pattern[str], ...]
     work_cues: tuple[re.Pattern[str], ...]
     before_cues: tuple[re.Pattern[str], ...]
+    age_cues: tuple[re.Pattern[str], ...]
     after_cues: tuple[re.Pattern[str], ...]
     blocks: tuple[re.Pattern[str], ...]
     apposition_cues: tuple[re.Pattern[str], ...]
@@ -69,6 +82,7 @@ class OccupationLists:
     skip: frozenset[str]
     stop: frozenset[str]
     weak: frozenset[str]
+    nonjob: frozenset[str] = frozenset()
 
     def ends_occupation(self, words: list[str], weak_ok: bool = False) -> bool:
         """True when the lower-cased words end in a listed occupation or a head word.
@@ -79,6 +93,17 @@ class OccupationLists:
         if words[-1] in self.heads and (weak_ok or words[-1] not in self.weak):
             return True
         return any(" ".join(words[k:]) in self.phrases for k in range(len(words) - 1))
+
+    def agent_noun(self, word: str) -> bool:
+        """True for an unlisted English agent noun that may name a job ("lineman", "tester").
+
+        The word must be in the English word list, end like an agent noun, and be
+        neither a clinical word ("ulcer", "smoker") nor a relation or habit (``nonjob``).
+        """
+        return (
+            len(word) > 4 and word.endswith(_AGENT_ENDINGS) and word not in self.nonjob
+            and word in english_words() and word not in org_lists().clinical
+        )
 
     def is_staff(self, words: list[str]) -> bool:
         """True when the words end in a care-team title ("nurse practitioner", "radiologist")."""
@@ -102,8 +127,9 @@ def occupation_lists() -> OccupationLists:
         return frozenset(w for c in cues.get(kind, []) for w in c.split("|"))
 
     return OccupationLists(
-        frozenset(phrases), frozenset(heads), compiled("label"), compiled("work"), compiled("before"), compiled("after"),
+        frozenset(phrases), frozenset(heads), compiled("label"), compiled("work"), compiled("before"), compiled("age"), compiled("after"),
         compiled("block"), compiled("apposition"), compiled("signature"), words("staff"), words("skip"), words("stop"), words("weak"),
+        words("nonjob"),
     )
 
 
@@ -158,7 +184,8 @@ def _phrase_after(lists: OccupationLists, text: str, pos: int, kind: str, caps: 
         if low in lists.stop and not (any_words and words and low in _LABEL_JOINERS):
             break
         cased = word.islower() or (not words and word[1:].islower()) or (caps and word.isupper())
-        if not any_words and not cased and not (word.isupper() and low in lists.phrases):
+        abbreviation = bool(_ABBREVIATION.fullmatch(word)) and kind in _OPEN_KINDS
+        if not any_words and not cased and not (word.isupper() and low in lists.phrases) and not abbreviation:
             break
         words.append((m.start(), m.end()))
         gap = re.match(r"[ \t]{1,2}(?=\S)", text[m.end() :])
@@ -174,12 +201,19 @@ def _phrase_after(lists: OccupationLists, text: str, pos: int, kind: str, caps: 
         return words[0][0], words[-1][1]
     lowered = [text[s:e].lower() for s, e in words]
     for n in range(len(words), 0, -1):
-        if lists.ends_occupation(lowered[:n], weak_ok=kind == "work"):
+        if text[words[n - 1][0] : words[n - 1][1]].isupper() and not caps and lowered[n - 1] not in lists.phrases:
+            continue  # an abbreviation modifies a job ("ICU nurse"), never ends one
+        agent = kind in _OPEN_KINDS and lists.agent_noun(lowered[n - 1])
+        if agent or lists.ends_occupation(lowered[:n], weak_ok=kind == "work"):
             if kind == "signature" and lists.is_staff(lowered[:n]):
                 return None  # "Ann Roe, nurse practitioner": the care team, not an occupation
             if kind in ("apposition", "signature") and not _APPOSITION_END.match(text, words[n - 1][1]):
                 return None  # "(Spanish interpreter declined)": not a job in apposition
             return words[0][0], words[n - 1][1]
+    if kind == "apposition" and len(words) <= 3 and all(w.islower() and w not in lists.nonjob for w in lowered):
+        end = words[-1][1]
+        if _EMPLOYER_OR_PHONE.match(text, end) and not lowered[-1].endswith(("ing", "ed")):
+            return words[0][0], end  # "son Ned (deacon at St Luke's)": unlisted, but an employer follows
     return None
 
 
@@ -196,7 +230,7 @@ def find_professions(text: str, lists: OccupationLists | None = None) -> list[tu
         if SCORES[kind] > found.get(span, (0.0, ""))[0]:
             found[span] = (SCORES[kind], kind)
 
-    kinds = (("label", lists.label_cues), ("work", lists.work_cues), ("before", lists.before_cues),
+    kinds = (("label", lists.label_cues), ("work", lists.work_cues), ("before", lists.before_cues), ("age", lists.age_cues),
              ("apposition", lists.apposition_cues), ("signature", lists.signature_cues))
     for kind, cues in kinds:
         for cue in cues:

@@ -201,12 +201,56 @@ def _unsupported(text: str, s: int, e: int, doc: object = None) -> bool:
     return piece.isupper() and all(ordinary(w) for w in words)
 
 
+#: What follows a scale or a grade, not a name: a number ("Grade 3", "Berg 22/56", "R. Grip 18 kg").
+_NUMBER_AFTER = re.compile(r"[ \t]*\d")
+#: What follows a field label, not a name: "No." or "#" ("Reg. No. 123", "Hosp # 4").
+_LABEL_AFTER = re.compile(r"\.?[ \t]*(?:No\b|#)")
+#: Lower-case words a person's name may contain ("Ludwig van Beethoven"): common practice.
+_NAME_PARTICLES = frozenset({"van", "von", "de", "der", "den", "du", "da", "di", "del", "della", "la", "le", "bin", "binti", "bint", "al", "el", "ibn", "ter", "ten", "dos", "das", "y"})
+
+
+def trim_person(text: str, s: int, e: int) -> tuple[int, int] | None:
+    """Drop ordinary words that are no name from the edges of a mixed-case PERSON piece.
+
+    The small model glues a name to a neighbouring word ("Modified Rankin",
+    "Jamar dynamometer", "Officer Pruitt"): a leading capitalised English word
+    of three letters or more in no name list (never an initial), and trailing lower-case words that are not name particles,
+    are not part of the name. Pieces in capitals are left alone (headers are
+    judged whole by :func:`_unlikely_person`).
+    """
+    from deid.detectors.name_lists import is_first_name, is_last_name
+    from deid.detectors.organizations import english_words
+
+    if text[s:e].isupper():
+        return s, e
+    toks = [(m.start() + s, m.end() + s) for m in _TOKEN.finditer(text[s:e])]
+    english = english_words()
+    while len(toks) > 1:
+        last = text[toks[-1][0] : toks[-1][1]]
+        if (last.islower() and last not in _NAME_PARTICLES) or any(c.isdigit() for c in last):
+            toks.pop()  # "Jamar dynamometer", "Reflexes 2+ symmetric": words and values after a name
+            continue
+        break
+    popped = False
+    while len(toks) > 1:
+        word = text[toks[0][0] : toks[0][1]].strip(".,'\u2019")
+        if len(word) > 2 and word.lower() in english and not (is_first_name(word) or is_last_name(word)):
+            toks.pop(0)
+            popped = True
+            continue
+        break
+    if popped and all(len(text[a:b].strip(".,")) <= 2 for a, b in toks):
+        return None  # "Hep C Ab": what is left is letters, not a name
+    return (toks[0][0], toks[-1][1]) if toks else None
+
+
 def _unlikely_person(text: str, s: int, e: int) -> bool:
     """True for a PERSON piece that nothing shows to be a name.
 
     One word is refused when it is two letters or fewer, in mixed case or a
     hyphenated code ("TcB", "NT-proBNP"), or an ordinary English word that is
-    in no first- or last-name list ("Chart", "Sleeps"). Several words in
+    in no first- or last-name list ("Chart", "Sleeps"), or an ordinary English
+    word right before a number ("Grade 3", "Berg 22/56": a scale). Several words in
     capitals are refused when all are ordinary English and not all are names
     ("CHART REVIEW", "WILL DISCUSS"); "BILL LONG" stays.
     """
@@ -225,7 +269,22 @@ def _unlikely_person(text: str, s: int, e: int) -> bool:
         word = words[0]
         if len(word) <= 2 or _HYPHEN_CODE.match(word) or any(_CAMEL.match(p) for p in word.split("-")):
             return True
+        if "-" in word and any(len(p) == 1 for p in word.split("-")):
+            return True  # "L-sided", "T-cell": a side or a letter joined to a word
+        if (word.lower() in english and _NUMBER_AFTER.match(text, e)) or _LABEL_AFTER.match(text, e):
+            return True
         return not named(word) and word.lower() in english
+    full = [w for w in words if len(w) > 1]
+    if full and not text[s:e].isupper() and all(w.lower() in english and not named(w) for w in full):
+        return True  # "L. Reflexes", "Abbreviated Mental": initials and ordinary words only
+    last = words[-1]
+    if last.lower() in english and not named(last) and _NUMBER_AFTER.match(text, e):
+        return True  # "R. Grip 18 kg": a measurement, not a person
+    if not text[s:e].isupper() and all(w.lower() in english for w in words) and not any(is_first_name(w) for w in words):
+        from deid.detectors.professions import occupation_lists
+
+        if last.lower() in occupation_lists().heads:
+            return True  # "School Nurse", "Case Manager": a role, not a person
     if text[s:e].isupper():
         return all(w.lower() in english for w in words) and not all(named(w) for w in words)
     return False
@@ -291,8 +350,13 @@ class SpacyEntityRecognizer(EntityRecognizer):
                     continue  # a person's name in capitals or before ":" is checked too ("DISCHARGE SUMMARY")
                 if label != "NAME" and _unsupported(text, trimmed[0], trimmed[1], nlp_artifacts.tokens):
                     continue
-                if label == "NAME" and _unlikely_person(text, trimmed[0], trimmed[1]):
-                    continue
+                if label == "NAME":
+                    trimmed = trim_person(text, *trimmed)
+                    if trimmed is None or not _keep(text[trimmed[0] : trimmed[1]], person):
+                        continue  # "GBS neg" -> "GBS": an abbreviation once the ordinary word is gone
+                    if _unlikely_person(text, trimmed[0], trimmed[1]):
+                        continue
+                    piece = text[trimmed[0] : trimmed[1]]
                 score = SCORES[label]
                 if label == "NAME" and len(piece.split()) == 1:
                     score = SINGLE_WORD_NAME_SCORE

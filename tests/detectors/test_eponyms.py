@@ -78,6 +78,13 @@ CASES = [
     ("Left Bell's palsy resolving.", "Bell", "NAME", True),  # G51.0
     ("Glasgow Coma Scale 15.", "Glasgow Coma Scale", "NAME", True),
     ("GCS: Glasgow 14.", "Glasgow", "CITY", True),
+    # round 3 (from memory of standard usage): a second eponym joined by "and", an operation
+    # name ending in -ostomy, a balance scale with its score, a programme named for a region
+    ("Ortolani and Barlow negative, hips stable.", "Ortolani", "ORGANIZATION", True),
+    ("Lich-Gregoir ureteroneocystostomy over a stent.", "Lich-Gregoir", "ORGANIZATION", True),
+    ("Berg 41/56 on review.", "Berg", "NAME", True),
+    ("Referred for the Otago exercise programme.", "Otago", "STATE", True),
+    ("Mr. Berg 41 years old.", "Berg", "NAME", False),  # a title makes it a person
     ("Positive Murphy sign.", "Murphy", "NAME", True),
     ("negative Murphy on exam", "Murphy", "NAME", True),
     ("Foley catheter placed.", "Foley", "NAME", True),

@@ -145,3 +145,21 @@ def test_world_regions_follow_pycountry() -> None:
         ln for ln in Path(__file__).parents[2].joinpath("deid/data/world_regions.txt").read_text(encoding="utf-8").splitlines()
         if not ln.startswith("#")
     ]
+
+
+# Round 3: towns in address slots after a facility name on a letterhead line and after a
+# street with an Indian PIN or a four-digit postcode; accented letters stay inside a word,
+# so "Labé" (GeoNames, Guinea) never makes "Lab" a town. Invented towns (common practice
+# in Irish, Indian and Australian address blocks).
+ROUND3 = [
+    ("Dr A. Roe\nKilbrannagh Health Centre, Kilbrannagh\n\nRe: Mr B", {("Kilbrannagh", "CITY")}),
+    ("12/03/2023 - Venkatesa Diabetes Care, Pullampet\nPt seen", {("Pullampet", "CITY")}),
+    ("Door No. 4/17, Kovil Street, Arasampet - 600 999\n", {("Arasampet", "CITY")}),
+    ("Mercy Hospital, Emergency Department\n", set()),  # ordinary words are no town
+    ("Transferred to Cath Lab 2 at 04:09.", set()),  # "Lab" is not "Labé"
+]
+
+
+@pytest.mark.parametrize(("text", "expected"), ROUND3, ids=[c[0][:30] for c in ROUND3])
+def test_round_three_address_towns(text: str, expected: set[tuple[str, str]]) -> None:
+    assert found(text) == expected

@@ -91,11 +91,37 @@ def test_cued_and_commonwealth(text: str, expected: set[tuple[str, str]]) -> Non
 def test_english_words_are_lower_case_dictionary_entries() -> None:
     from pathlib import Path
 
-    from deid.detectors.organizations import DICT_PATH, derive_english_words, english_words
+    from deid.detectors.organizations import BRITISH_DICT_PATH, DICT_PATH, derive_english_words, english_words
 
     words = english_words()
     # Debian's wamerican writes common words in lower case and proper nouns capitalised.
     assert {"controller", "reply", "church"} <= words
     assert "london" not in words and "english" not in words
-    if Path(DICT_PATH).exists():  # the list is only needed to regenerate
+    # Debian's wbritish adds British spellings (SCOWL): "centre", "counselling".
+    assert {"centre", "counselling", "programme"} <= words
+    if Path(DICT_PATH).exists() and Path(BRITISH_DICT_PATH).exists():  # only needed to regenerate
         assert frozenset(derive_english_words()) == words
+
+
+# Round 3: acronym suffixes, head-first facility names, named wards, "OB/GYN" as one word,
+# and suffixes that modify the next word. Invented names; the patterns are common practice
+# in English, French and Spanish facility naming.
+ROUND3 = [
+    ("Day camp at Tullamore Creek YMCA next week.", {("Tullamore Creek YMCA", "ORGANIZATION")}),
+    ("Transfer to Centre hospitalier de Vaudrelle tomorrow.", {("Centre hospitalier de Vaudrelle", "FACILITY")}),
+    ("Referred to the Institute of Medical Genetics.", set()),  # generic words only
+    ("Moved to St. Brigid's Ward, bed 4.", {("St. Brigid's Ward", "FACILITY")}),
+    ("Admitted to Medical Ward overnight.", set()),
+    ("Fax to Larchmont OB/GYN Associates today.", {("Larchmont OB/GYN Associates", "FACILITY")}),
+    ("KESTREL FOODS PLANT - STAFF HEALTH CLINIC\n", {("KESTREL FOODS PLANT", "ORGANIZATION")}),
+    ("HOLLOWAY PRISON - INTAKE HEALTH SCREENING\n", {("HOLLOWAY PRISON", "ORGANIZATION")}),
+    ("Signed, Ann Roe, RN, Certified School Nurse", set()),  # "School" modifies "Nurse"
+    ("Ins: Brookfield Dental ID 5521", {("Brookfield Dental", "FACILITY")}),  # a code does not continue it
+    ("CONSENT TO SURGERY AND ANAESTHESIA", set()),  # a heading, not a GP surgery
+    ("Wirrabee Alcohol and Drug Service - intake", {("Wirrabee Alcohol and Drug Service", "FACILITY")}),
+]
+
+
+@pytest.mark.parametrize(("text", "expected"), ROUND3, ids=[c[0][:30] for c in ROUND3])
+def test_round_three(text: str, expected: set[tuple[str, str]]) -> None:
+    assert found(text) == expected

@@ -91,3 +91,28 @@ MORE = [
 @pytest.mark.parametrize(("text", "expected"), MORE, ids=[c[0][:30] for c in MORE])
 def test_round_two_cases(text: str, expected: set[str]) -> None:
     assert found(text) == expected
+
+
+# Round 3: an occupation after an age in apposition ("Ann Roe, 31, ..."), after "N y.o." and
+# "F, 34 y,", unlisted agent nouns ("-er", "-man") after those cues, and an unlisted job in a
+# relative's brackets before a phone number or an employer. Invented sentences; the
+# agent-noun endings are ordinary English morphology (common practice).
+ROUND3 = [
+    ("29 y.o. FIFO crane operator (4 weeks on).", {"FIFO crane operator"}),
+    ("Proband Ada Roe (III-2), F, 41 y, systems tester at a bank.", {"systems tester"}),
+    ("III-1 sister Mira, 38, harbour pilot, echo normal.", {"harbour pilot"}),
+    ("Mrs Okafor, 47, dental technician who lives alone.", {"dental technician"}),
+    ("Father: Dale Roe, lineman for a power co-op.", {"lineman"}),  # unlisted agent noun
+    ("and daughter Ines (prison officer, 555-0100).", {"prison officer"}),
+    ("his son Piet (deacon at St Anselm's).", {"deacon"}),  # unlisted, an employer follows
+    ("Pt Ravi Roe (61 y, spice shop owner, Main Bazaar)", {"spice shop owner"}),
+    ("45 yo never smoker, no alcohol.", set()),  # a habit, not a job
+    ("Mother Ann Roe (present at Bedside)", set()),  # a state word, refused
+    ("Jo Roe - 19yo driver, restrained, airbag deployed", set()),  # the crash role, not a job
+    ("Sister Mary, 60, deceased.", set()),
+]
+
+
+@pytest.mark.parametrize(("text", "expected"), ROUND3, ids=[c[0][:30] for c in ROUND3])
+def test_round_three_cases(text: str, expected: set[str]) -> None:
+    assert found(text) == expected

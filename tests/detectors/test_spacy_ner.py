@@ -158,3 +158,26 @@ def test_unlikely_person(piece: str, refused: bool) -> None:
     text = f"Seen with {piece} today."
     start = text.index(piece)
     assert _unlikely_person(text, start, start + len(piece)) is refused
+
+
+# Round 3: PERSON pieces glued to ordinary words, scales before a score, roles and leftovers.
+# Invented text; the entities are set by hand as above.
+ROUND3 = [
+    ("Modified Rankin 4 at discharge.", [("Modified Rankin", "PERSON")], {("Rankin", "NAME")}),  # trimmed
+    ("Anaesthetist Tamsin Pruitt present.", [("Anaesthetist Tamsin Pruitt", "PERSON")], {("Tamsin Pruitt", "NAME")}),
+    ("Hep C Ab positive 2019.", [("Hep C Ab", "PERSON")], set()),  # letters left once "Hep" goes
+    ("Student in Grade 3 at school.", [("Grade", "PERSON")], set()),  # a word before a number
+    ("(Reg. No. 55512)", [("Reg", "PERSON")], set()),  # a label before "No."
+    ("EHL 4/5 L. Reflexes 2+ symmetric.", [("L. Reflexes 2+ symmetric", "PERSON")], set()),
+    ("Mild L-sided headache.", [("Mild L-sided", "PERSON")], set()),
+    ("Licensed School Nurse", [("Licensed School Nurse", "PERSON")], set()),  # a role
+    ("GBS neg, HBsAg neg.", [("GBS neg", "PERSON")], set()),
+    ("Seen by J. Reyes-Mora today.", [("J. Reyes-Mora", "PERSON")], {("J. Reyes-Mora", "NAME")}),  # initial kept
+    ("Hx HTN, HLD.", [("Hx HTN", "ORG")], set()),
+    ("Quillby Schools - Health Office Visit Log", [("Health Office Visit Log", "ORG")], set()),
+]
+
+
+@pytest.mark.parametrize(("text", "ents", "expected"), ROUND3, ids=[c[0][:30] for c in ROUND3])
+def test_round_three(text: str, ents: list[tuple[str, str]], expected: set[tuple[str, str]]) -> None:
+    assert run(text, ents) == expected
