@@ -1,8 +1,8 @@
-"""Build the blind corpus ``blind2`` from ``source/*.md``: for scoring only, never for tuning.
+"""Build the fourth development corpus (``dev_d``; written as a blind set) from ``source/*.md``.
 
 Outputs next to this script: ``gold.jsonl``, ``notes.jsonl``, ``manifest.csv``.
 
-Run:  python tests/corpora/blind2/build.py [--strict]
+Run:  python tests/corpora/dev_d/build.py [--strict]
 """
 
 from __future__ import annotations
@@ -16,4 +16,4 @@ sys.path.insert(0, str(HERE.parent))
 from corpus_build import build  # noqa: E402  (a sibling script, found through the path above)
 
 if __name__ == "__main__":
-    sys.exit(build(HERE, "Build the blind2 chartveil corpus."))
+    sys.exit(build(HERE, "Build the dev_d chartveil corpus."))
