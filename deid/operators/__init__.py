@@ -1,2 +1,9 @@
-from deid.operators import dates  # noqa: F401
-from deid.operators import contact, identifiers, names, numbers, places, simple  # noqa: F401
+from deid.operators import (  # noqa: F401
+    contact,
+    dates,  # noqa: F401
+    identifiers,
+    names,
+    numbers,
+    places,
+    simple,
+)

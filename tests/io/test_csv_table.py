@@ -137,7 +137,7 @@ def test_bad_row_is_rejected(tmp_path: Path, row: bytes, note_id: str, reason: s
     assert [type(x).__name__ for x in out] == ["Note", "LocatedReject", "Note"]
     rej = out[1]
     assert isinstance(rej, NoteRejected)
-    assert (rej.note_id, rej.reason, getattr(rej, "source")) == (note_id, reason, "bad.csv row 2")
+    assert (rej.note_id, rej.reason, rej.source) == (note_id, reason, "bad.csv row 2")
 
 
 def test_latin1_row_is_rejected_alone_with_byte_offset(tmp_path: Path) -> None:

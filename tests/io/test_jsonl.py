@@ -180,7 +180,7 @@ def test_reader_streams_line_by_line(tmp_path: Path, monkeypatch: pytest.MonkeyP
     opened: list[CountingFile] = []
 
     def counting_open(path: Path) -> CountingFile:
-        opened.append(CountingFile(open(path, "rb")))
+        opened.append(CountingFile(open(path, "rb")))  # noqa: SIM115 - the reader under test closes it
         return opened[-1]
 
     monkeypatch.setattr(jsonl, "open_binary", counting_open)

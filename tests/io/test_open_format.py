@@ -86,7 +86,7 @@ def test_csv_input_to_every_writer(tmp_path: Path, out_fmt: str) -> None:
     writer = open_writer(out_fmt, tmp_path / "out", columns, reader)  # the reader stands for its layout
     writer.write(notes)
     writer.close()
-    assert getattr(writer, "path") == tmp_path / "out" / {"csv.v1": "visits.csv", "jsonl.v1": "visits.jsonl",
+    assert writer.path == tmp_path / "out" / {"csv.v1": "visits.csv", "jsonl.v1": "visits.jsonl",
                                                          "parquet.v1": "visits.parquet", "txt_dir.v1": "notes"}[out_fmt]
     back_path = {"csv.v1": "visits.csv", "jsonl.v1": "visits.jsonl", "parquet.v1": "visits.parquet",
                  "txt_dir.v1": "notes"}[out_fmt]

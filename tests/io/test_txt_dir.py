@@ -80,7 +80,7 @@ def test_latin1_file_is_rejected_with_offset(folder: Path) -> None:
     (folder / "B-02.txt").write_bytes(b"Pt seen at caf\xe9e.")
     rej = list(TxtDirReader(folder))[1]
     assert isinstance(rej, NoteRejected)
-    assert (rej.note_id, rej.reason, getattr(rej, "source")) == ("B-02", "not UTF-8 (byte offset 14)", "B-02.txt")
+    assert (rej.note_id, rej.reason, rej.source) == ("B-02", "not UTF-8 (byte offset 14)", "B-02.txt")
 
 
 def test_bom_is_dropped_and_offset_counts_it(folder: Path) -> None:
