@@ -67,7 +67,7 @@ def test_different_key_or_patient_gives_different_offsets() -> None:
     patients = [f"patient-{i}" for i in range(20)]
     a = [patient_offset_days(KEY_A, p, POLICY) for p in patients]
     b = [patient_offset_days(KEY_B, p, POLICY) for p in patients]
-    assert sum(x != y for x, y in zip(a, b)) >= 15  # a collision per patient has chance ~1/672
+    assert sum(x != y for x, y in zip(a, b, strict=True)) >= 15  # a collision per patient has chance ~1/672
     assert len(set(a)) >= 15
 
 
