@@ -40,7 +40,7 @@ FAKER_FILE = "occupations_faker.txt"
 SCORES = {"label": 0.8, "work": 0.75, "before": 0.7, "age": 0.7, "after": 0.7, "apposition": 0.7, "signature": 0.65}
 #: Endings of agent nouns ("lineman", "tester", "machinist", "electrician"): common practice in English
 #: morphology. An unlisted word with one counts as an occupation only after an age or a relative's name.
-_AGENT_ENDINGS = ("er", "or", "ist", "man", "ian", "eer")
+_AGENT_ENDINGS = ("er", "or", "ist", "man", "ian", "eer", "wright")
 #: After a relative's name, what shows that the lower-case words in brackets or commas are a job
 #: even when unlisted: a phone number ("(police constable, 555-0100)") or an employer
 #: ("(deacon at St Luke's)", "lineman for Ridge Electric").
@@ -189,6 +189,8 @@ def _phrase_after(lists: OccupationLists, text: str, pos: int, kind: str, caps: 
             break
         words.append((m.start(), m.end()))
         gap = re.match(r"[ \t]{1,2}(?=\S)", text[m.end() :])
+        if gap is None and all(text[a:b].lower() in lists.skip for a, b in words):
+            gap = re.match(r"[ \t]*\n[ \t]*(?=\S)", text[m.end() :])  # "as a\nCNA": a wrapped line
         if gap is None:
             break
         cur = m.end() + gap.end()

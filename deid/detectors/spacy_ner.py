@@ -38,6 +38,7 @@ from presidio_analyzer import EntityRecognizer, RecognizerResult
 from presidio_analyzer.nlp_engine import NlpArtifacts
 
 from deid.detectors.gazetteer import STREET_WORDS, places
+from deid.detectors.world_places import load_languages
 from deid.resources import data_file
 
 NAME = "spacy_ner.v1"
@@ -107,9 +108,22 @@ def _strip_possessive(text: str, s: int, e: int) -> int:
     return e
 
 
+#: Document-type words: a piece in capitals holding one is a note header ("CRU STUDY VISIT",
+#: "L&D ADMISSION H&P"), never a name (common practice in clinical note titles).
+_HEADER_WORDS = frozenset({"visit", "admission", "h&p", "note", "notes", "summary", "consult", "consultation", "report", "progress", "discharge", "handoff"})
+
+
 def _keep(piece: str, person: bool) -> bool:
-    """Reject pieces that are abbreviations, lower-case words or stop-listed terms."""
+    """Reject pieces that are abbreviations, lower-case words, stop-listed terms or languages.
+
+    A language or people ("Igbo", "Tagalog") names no person or body; the
+    list is ISO 639-1 (``language_names.txt``).
+    """
     if not piece or not piece[0].isupper():
+        return False
+    if piece.strip(".,'\u2019").lower() in load_languages():
+        return False
+    if piece.isupper() and len(piece.split()) > 1 and any(w.lower() in _HEADER_WORDS for w in piece.split()):
         return False
     words = piece.split()
     limit = 4 if person else 5

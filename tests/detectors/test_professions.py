@@ -116,3 +116,20 @@ ROUND3 = [
 @pytest.mark.parametrize(("text", "expected"), ROUND3, ids=[c[0][:30] for c in ROUND3])
 def test_round_three_cases(text: str, expected: set[str]) -> None:
     assert found(text) == expected
+
+
+# Round 4 cues (common practice in social-history phrasing); synthetic sentences.
+@pytest.mark.parametrize(
+    ("text", "expected"),
+    [
+        ("Her partner works weekends as a\nCNA at a nursing home.", ["CNA"]),  # wrapped line after "as a"
+        ("Niece Opal (dental hygienist) visits often.", ["dental hygienist"]),  # niece as a relation
+        ("Mother\nIda Penn (pharmacist at a drugstore) called.", ["pharmacist"]),  # name on the next line
+        ("SH: graphic designer, lives alone.", ["graphic designer"]),  # SH field label
+        ("The note served as a reminder to call.", []),  # no work cue: nothing found
+    ],
+)
+def test_round4_cues(text: str, expected: list[str]) -> None:
+    from deid.detectors.professions import find_professions
+
+    assert [text[s:e] for s, e, _, _ in find_professions(text)] == expected
