@@ -144,6 +144,11 @@ def _signer(text: str, s: int, sig: str, t: Triggers) -> Iterator[Hit]:
         yield s, end, 0.7, "signature"
 
 
+def _specialty(word: str) -> bool:
+    """A specialty name ("Pulmonology", "Pediatrics"): the usual endings (common practice)."""
+    return word.lower().endswith(("ology", "ologies", "iatry", "iatrics", "ics", "ery"))
+
+
 def _plain(word: str) -> bool:
     return (is_first_name(word) or is_last_name(word)) and not is_common_word(word)
 
@@ -183,6 +188,9 @@ def role_hits(text: str, t: Triggers) -> Iterator[Hit]:
         inner = text[m.end() : end]
         if inner.isupper() and len(inner) <= 3:
             continue  # "CO-SURGEON (ENT)": a specialty, not a name
+        words = re.findall(WORD, inner)
+        if words and (any(map(_specialty, words)) or all(is_english_word(w) and not is_first_name(w) for w in words)):
+            continue  # "MD (Hand)", "(Interventional Pulmonology)": a service, not a name
         if end > m.end() and text[end : end + 2].lstrip(" ").startswith(")"):
             yield m.end(), end, 0.75, "role"
 
@@ -294,3 +302,55 @@ def message_hits(text: str, t: Triggers) -> Iterator[Hit]:
         ini = m.group("ini").lower()
         if not {ini} & (t.signature_non_names | t.credentials | t.stop_words):
             yield m.start("ini"), m.end("ini"), 0.7, "signature"
+
+
+# Typist reference initials of dictated letters and reports ("ABC/xy", "/xyz" after a job
+# number, "(ABC/xy)"): the business-letter reference-initials convention (common practice).
+_REFERENCE = re.compile(
+    r"(?:^|(?<=\())[ \t]*(?P<a>[A-Z]{2,4})/(?P<b>[a-z]{2,3})(?=[ \t]*(?:\)|$|[ \t]{2}|[ \t]+[A-Z]{1,2}:))",
+    re.MULTILINE,
+)
+_TYPIST = re.compile(r"(?:#|no\.?)[ \t]*:?[ \t]*\d{4,}[ \t]+/(?P<b>[a-z]{2,4})[ \t]*$", re.MULTILINE | re.IGNORECASE)
+# "-TRH, RN": initials after a dash, before a credential, ending a charting entry.
+_DASH_INITIALS = re.compile(r"(?<![\w-])-[ \t]?(?P<ini>[A-Z]{2,4}),?[ \t]+(?P<cred>[A-Za-z][A-Za-z/-]{1,7})\b")
+# "Initials M-T-O", "initials: A.B.": a subject's initials in research forms.
+_INITIALS_FIELD = re.compile(
+    r"\b[Ii]nitials[ \t]*[:#]?[ \t]*(?P<ini>[A-Z](?:[-.][ \t]?[A-Z]){1,3}\.?|[A-Z]{2,4})(?![\w-])"
+)
+# "the Duffys", "the Okafors": a family named by the plural of its surname.
+_FAMILY = re.compile(r"\b[Tt]he[ \t]+(?P<stem>[A-Z][a-z]{2,})s\b")
+# "Quiroga-Vell, R": a double-barrelled surname and an initial, as in a table cell.
+_HYPHEN_LAST_INITIAL = re.compile(rf"(?<![\w-])(?P<last>{WORD}-{WORD}),[ \t]?[A-Z]\.?(?![\w'’-])")
+
+
+def _initials_ok(ini: str, t: Triggers) -> bool:
+    low = ini.lower()
+    return not {low} & (t.signature_non_names | t.credentials | t.stop_words | t.cue_words)
+
+
+def reference_hits(text: str, t: Triggers) -> Iterator[Hit]:
+    """Dictation and typist initials, research-form initials, "-TRH, RN", "the Duffys",
+    and "Quiroga-Vell, R"."""
+    for m in _REFERENCE.finditer(text):
+        for g in ("a", "b"):
+            if _initials_ok(m.group(g), t) and not is_english_word(m.group(g)):
+                yield m.start(g), m.end(g), 0.7, "signature"
+    for m in _TYPIST.finditer(text):
+        if _initials_ok(m.group("b"), t) and not is_english_word(m.group("b")):
+            yield m.start("b"), m.end("b"), 0.7, "signature"
+    for m in _DASH_INITIALS.finditer(text):
+        if m.group("cred").lower() in t.credentials and _initials_ok(m.group("ini"), t):
+            yield m.start("ini"), m.end("ini"), 0.7, "signature"
+    for m in _INITIALS_FIELD.finditer(text):
+        yield m.start("ini"), m.end("ini"), 0.7, "role"
+    for m in _FAMILY.finditer(text):
+        stem = m.group("stem")
+        # A listed surname that is also a term ("Duffy" blood group) still names a family in the plural.
+        listed = _plain(stem) or is_last_name(stem) and not is_english_word(stem)
+        if listed and not is_english_word(stem + "s") and stem.lower() not in t.stop_words:
+            yield m.start("stem"), m.end(), 0.7, "relation"
+    for m in _HYPHEN_LAST_INITIAL.finditer(text):
+        parts = m.group("last").split("-")
+        if all(p.istitle() for p in parts) and any(_plain(p) or not is_english_word(p) for p in parts):
+            if not any(p.lower() in t.stop_words | t.cue_words | t.credentials for p in parts):
+                yield m.start(), m.end(), 0.7, "last_first"

@@ -282,6 +282,8 @@ def accept_word(tok: str, mode: str, strength: str, after_first: bool, t: Trigge
     if strength in ("title", "strong", "label", "demographic"):
         # Case says nothing here, so an everyday word opens no name ("Patient: see above").
         return plain or foreign
+    if tok.islower() and low in english_words() and not is_first_name(tok):
+        return False  # "uncle died", "with pill box": a lower-case dictionary word opens no name
     if plain and strength in ("weak", "patient") and is_inflected_word(tok) and name_frequency(tok) < 0.01:
         return False  # "with meals": a rare surname that is a dictionary word, after a weak cue
     return plain or (foreign and strength in ("medium", "relation"))

@@ -36,6 +36,7 @@ from deid.detectors.name_shapes import (
     demographic_hits,
     last_first_hits,
     message_hits,
+    reference_hits,
     role_hits,
     signature_hits,
     signoff_hits,
@@ -279,6 +280,7 @@ def find_names(text: str, t: Triggers | None = None) -> list[Hit]:
         *signature_hits(text, t),
         *role_hits(text, t),
         *message_hits(text, t),
+        *reference_hits(text, t),
     ]
     # "cc: Ann Lee, Bo Chen" is two names, not "Lee, Bo": a reversed name may
     # not cut through a cue-found one.

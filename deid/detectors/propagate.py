@@ -93,9 +93,13 @@ def _name_entries(value: str, score: float) -> list[Entry]:
         if not _name_word_ok(w):
             continue
         if is_common_word(w) or is_english_word(w) and not is_first_name(w):
-            # "Grant", "Reader": an everyday word is matched capitalised or in capitals only
-            for form in {w, w[0].upper() + w[1:].lower(), w.upper()} - {w.lower()}:
-                entries.append((flex_pattern(form), True, "NAME", score * 0.9, len(w)))
+            # "Grant", "Reader": an everyday word is matched capitalised or in capitals only, and
+            # never as the first part of a compound term ("Lung-RADS").
+            forms = {w, w[0].upper() + w[1:].lower(), w.upper()} - {w.lower()}
+            if w.lower() in org_lists().clinical and w.istitle():
+                forms.discard(w.upper())  # "HAND THERAPY", "LUNG": a heading word, not "Dr. Hand"
+            for form in forms:
+                entries.append((flex_pattern(form) + r"(?!-[^\W\d_])", True, "NAME", score * 0.9, len(w)))
         else:
             entries.append((flex_pattern(w), False, "NAME", score * 0.95, len(w)))
     if len(plain) >= 2:

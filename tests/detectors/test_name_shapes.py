@@ -65,3 +65,37 @@ def test_rules_are_named_in_the_hits() -> None:
     text = "Dear Siobhan,\nAll well.\n-- O.F.\n"
     assert [r for *_, r in message_hits(text, t)] == ["greeting"]
     assert [text[s:e] for s, e, _, _ in signature_hits(text, t)] == ["O.F."]
+
+
+# Reference initials of a typist ("ABC/xy") follow the business-letter convention (common practice);
+# sentences are synthetic.
+@pytest.mark.parametrize(
+    ("text", "expected"),
+    [
+        ("JOB #: 551203  /mrk\n", ["mrk"]),
+        ("Margins clear. (RSW/gt)\n", ["RSW", "gt"]),
+        ("Calmed on phone. -DKW, RN\n02/15 0400", ["DKW"]),
+        ("Site 02 Subj 003-0012   Initials J-R-K\nVisit", ["J-R-K"]),
+        ("She is being cared for by the Okonkwos.", ["Okonkwos"]),
+        ("Tues | Okafor-Lindqvist, T | MRN 123", ["Okafor-Lindqvist, T"]),
+        ("Dose 5 mg/dl today. IU/ml (kg/hr)\n", []),
+        ("The Walls are blue.", []),
+    ],
+)
+def test_reference_hits(text: str, expected: list[str]) -> None:
+    from deid.detectors.name_shapes import reference_hits
+    from deid.detectors.name_triggers import default_triggers
+
+    assert [text[a:b] for a, b, *_ in reference_hits(text, default_triggers())] == expected
+
+
+@pytest.mark.parametrize(
+    "text",
+    ["Surgeon: Ann Lee, MD (Hand)   Anesthesia", "Bo Keele, MD (Interventional Pulmonology)  cc"],
+)
+def test_specialty_in_brackets_is_not_a_name(text: str) -> None:
+    # A service in brackets after a credential is not a person (common practice).
+    from deid.detectors.names import find_names
+
+    inner = text[text.index("(") + 1 : text.index(")")]
+    assert all(text[a:b] != inner for a, b, *_ in find_names(text))

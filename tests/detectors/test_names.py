@@ -229,3 +229,18 @@ def test_new_trigger_keys_are_required(tmp_path: Path) -> None:
     bad.write_text(text.replace("signature_non_names:", "unused_key:"), encoding="utf-8")
     with pytest.raises(ConfigError, match=r"key 'signature_non_names'"):
         load_triggers(bad)
+
+
+# A lower-case dictionary word after a relation or phrase cue is no name, but a lower-case
+# first name still is (common practice; synthetic sentences).
+@pytest.mark.parametrize(
+    ("text", "expected"),
+    [
+        ("fh: maternal uncle died by suicide.", []),
+        ("meds reconciled with pill box today", []),
+        ("granddaughter mackenzie at bedside", ["mackenzie"]),
+        ("Her children are staying with the Duffys this week.", ["Duffys"]),
+    ],
+)
+def test_lower_case_dictionary_words(text: str, expected: list[str]) -> None:
+    assert [text[a:b] for a, b, *_ in find_names(text)] == expected

@@ -161,3 +161,15 @@ def test_initialism_never_a_credential() -> None:
     # A wrongly found "Licensed Vocational Nurse" must not mark the credential "LVN".
     text = "Licensed Vocational Nurse on duty. - A. Brennock, LVN"
     assert _found(text, [_span(text, "Licensed Vocational Nurse", "ORGANIZATION")]) == []
+
+
+def test_everyday_surname_not_carried_into_compound_or_heading() -> None:
+    import re
+
+    # "Lung-RADS" is a compound term and "HAND THERAPY" a heading (common practice).
+    from deid.detectors.propagate import _name_entries
+
+    patterns = [re.compile(p) for p, *_ in _name_entries("Ann Hand", 0.9)]
+    assert not any(p.fullmatch("HAND") for p in patterns)
+    assert any(p.fullmatch("Hand") for p in patterns)
+    assert not any(p.match("Hand-Schüller") and p.match("Hand-Schüller").end() == 4 for p in patterns)
