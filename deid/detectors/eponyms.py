@@ -175,6 +175,8 @@ class EponymSuppressor:
     def _person_before(self, before: list[str]) -> bool:
         """A title ("Mr.", "Dr") or "patient" right before the candidate makes it a person."""
         ctx = self.lists.context
+        while before and before[-1] in ("-", "\u2013", "\u2014", ",", ":"):
+            before = before[:-1]  # "Thanks - Marcus", "Dear Dr. X,": look past the punctuation
         if not before:
             return False
         if before[-1] == "." and len(before) > 1:

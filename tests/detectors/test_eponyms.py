@@ -126,3 +126,20 @@ def test_suppression(text: str, surface: str, label: str, expected: bool) -> Non
 def test_registered() -> None:
     assert detectors.get("eponyms.v1") is make_eponym_suppressor
     assert make_eponym_suppressor().name == "eponyms.v1"
+
+
+@pytest.mark.parametrize(
+    "text",
+    [
+        # A greeting or closing makes the next word a person (common practice in letters and messages),
+        # even when it is also an eponym ("Marcus Gunn pupil").
+        "Hi Marcus - please call the clinic.",
+        "Thanks - Marcus\nSent from my phone",
+    ],
+)
+def test_greeting_or_closing_names_a_person(text: str) -> None:
+    from deid.detectors.eponyms import EponymSuppressor
+
+    start = text.index("Marcus")
+    span = Span(start, start + len("Marcus"), "NAME", 0.8, "names.v1/greeting")
+    assert EponymSuppressor().suppresses(Note("n", text), span) is False
