@@ -297,7 +297,7 @@ class GazetteerRecognizer(EntityRecognizer):
                 continue
             toks = [w.group() for w in words[i : i + n]]
             caps = all(t.isupper() for t in toks) and len("".join(toks)) > 2
-            if not all(t == p or (caps and t == p.upper()) for t, p in zip(toks, place.words)):
+            if not all(t == p or (caps and t == p.upper()) for t, p in zip(toks, place.words, strict=False)):
                 continue
             gaps = (text[words[k - 1].end() : words[k].start()] for k in range(i + 1, i + n))
             if all(_GAP_OK.match(g) for g in gaps):

@@ -351,6 +351,6 @@ def reference_hits(text: str, t: Triggers) -> Iterator[Hit]:
             yield m.start("stem"), m.end(), 0.7, "relation"
     for m in _HYPHEN_LAST_INITIAL.finditer(text):
         parts = m.group("last").split("-")
-        if all(p.istitle() for p in parts) and any(_plain(p) or not is_english_word(p) for p in parts):
-            if not any(p.lower() in t.stop_words | t.cue_words | t.credentials for p in parts):
-                yield m.start(), m.end(), 0.7, "last_first"
+        shaped = all(p.istitle() for p in parts) and any(_plain(p) or not is_english_word(p) for p in parts)
+        if shaped and not any(p.lower() in t.stop_words | t.cue_words | t.credentials for p in parts):
+            yield m.start(), m.end(), 0.7, "last_first"

@@ -24,8 +24,8 @@ from functools import lru_cache
 from deid.detectors.base import source_name
 from deid.detectors.name_lists import is_common_word, is_english_word, is_first_name, is_last_name
 from deid.detectors.name_triggers import case_mode, default_triggers, line_mode, name_before, walk_name
-from deid.model import Note, Span
 from deid.detectors.organizations import english_words, org_lists
+from deid.model import Note, Span
 from deid.resources import data_file
 
 NAME = "propagate.v1"

@@ -151,7 +151,7 @@ def load_roster(path: Path) -> Roster:
             continue
         if len(row) != len(header):
             raise ConfigError(f"{path}:{line}: expected {len(header)} fields, found {len(row)}")
-        cells = dict(zip(header, (c.strip() for c in row)))
+        cells = dict(zip(header, (c.strip() for c in row), strict=True))
         pid = cells.pop("patient_id")
         if not pid:
             raise ConfigError(f"{path}:{line}: empty patient_id")

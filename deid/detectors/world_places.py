@@ -95,7 +95,7 @@ def derive_world_regions() -> list[str]:
     english, person = english_words(), _person_names()
     rows: set[str] = set()
     for cc in region_countries():
-        for sub in pycountry.subdivisions.get(country_code=cc) or []:
+        for sub in pycountry.subdivisions.get(country_code=cc) or []:  # type: ignore[no-untyped-call,unused-ignore]
             name = re.sub(r"\s*\[.*?\]\s*", "", sub.name).split(",")[0].strip()
             label = "COUNTRY" if sub.type in ("Country", "Nation") or (cc == "GB" and sub.type == "Province") else (
                 "COUNTY" if sub.type in _COUNTY_TYPES else "STATE")
