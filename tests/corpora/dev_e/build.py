@@ -2,7 +2,7 @@
 
 Outputs next to this script: ``gold.jsonl``, ``notes.jsonl``, ``manifest.csv``.
 
-Run:  python tests/corpora/blind3/build.py [--strict]
+Run:  python tests/corpora/dev_e/build.py [--strict]
 """
 
 from __future__ import annotations
@@ -16,4 +16,4 @@ sys.path.insert(0, str(HERE.parent))
 from corpus_build import build  # noqa: E402  (a sibling script, found through the path above)
 
 if __name__ == "__main__":
-    sys.exit(build(HERE, "Build the blind3 chartveil corpus (scoring only)."))
+    sys.exit(build(HERE, "Build the dev_e chartveil corpus (scoring only)."))
