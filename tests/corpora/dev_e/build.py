@@ -1,4 +1,4 @@
-"""Build the third blind scoring corpus (``blind3``; hand-written, never used for tuning) from ``source/*.md``.
+"""Build the fifth development corpus (``dev_e``; written as a blind set) from ``source/*.md``.
 
 Outputs next to this script: ``gold.jsonl``, ``notes.jsonl``, ``manifest.csv``.
 
