@@ -258,6 +258,18 @@ def _good(tok: str) -> bool:
     return not is_common_word(tok) and len(tok) > 1
 
 
+@lru_cache(maxsize=1)
+def _languages() -> frozenset[str]:
+    from deid.detectors.world_places import load_languages
+
+    return load_languages()
+
+
+def is_language(token: str) -> bool:
+    """True for a language or people name ("Hmong", "Diné", "Kreyòl"): on its own, never a person."""
+    return token.lower() in _languages()
+
+
 def find_list_names(text: str) -> Iterator[tuple[int, int, float, str]]:
     """Yield ``(start, end, score, rule)`` for list-based name candidates in ``text``."""
     toks = [(m.start(), m.end(), m.group()) for m in _TOKEN.finditer(text)]
@@ -284,6 +296,7 @@ def find_list_names(text: str) -> Iterator[tuple[int, int, float, str]]:
             _is_title(tok)
             and len(tok) > 2
             and _good(tok)
+            and not is_language(tok)
             and (is_first_name(tok) or is_last_name(tok))
             and not _sentence_start(text, s)
             and not _line_is_upper(text, s)
@@ -295,6 +308,7 @@ def find_list_names(text: str) -> Iterator[tuple[int, int, float, str]]:
             _is_title(tok)
             and len(tok) > 2
             and _good(tok)
+            and not is_language(tok)
             and is_first_name(tok)
             and name_frequency(tok) >= 0.01
             and not is_english_word(tok)

@@ -240,6 +240,8 @@ def last_first_hits(text: str, t: Triggers) -> Iterator[Hit]:
             continue
         if {last.lower(), first.lower()} & (t.cue_words | t.credentials | t.stop_words):
             continue  # "Hi Billie, Dr. Ashworth ...": a title is no first name
+        if last.isupper() and len(last) <= 3 and re.search(r"\d%?[ \t]*$", text[: m.start()]):
+            continue  # "SpO2 93% RA, BG 162": abbreviations after a measurement
         if not is_first_name(first):
             # A first name newer than the 1990 lists ("QUIMBY, MAKAYLA"): a listed,
             # non-everyday surname and a non-English word, both capitalised alike.
@@ -300,6 +302,8 @@ def message_hits(text: str, t: Triggers) -> Iterator[Hit]:
             yield m.start("name"), m.end("name"), 0.7, "message"
     for m in _TIME_BEFORE.finditer(text):
         ini = m.group("ini").lower()
+        if re.fullmatch(r"\d+\.\d+", text[m.start() : m.start("ini")].rstrip(" \t(")):
+            continue  # "Hgb 10.1 (POC)": a decimal value and its method, not a dated entry
         if not {ini} & (t.signature_non_names | t.credentials | t.stop_words):
             yield m.start("ini"), m.end("ini"), 0.7, "signature"
 
@@ -321,6 +325,10 @@ _INITIALS_FIELD = re.compile(
 _FAMILY = re.compile(r"\b[Tt]he[ \t]+(?P<stem>[A-Z][a-z]{2,})s\b")
 # "Quiroga-Vell, R": a double-barrelled surname and an initial, as in a table cell.
 _HYPHEN_LAST_INITIAL = re.compile(rf"(?<![\w-])(?P<last>{WORD}-{WORD}),[ \t]?[A-Z]\.?(?![\w'’-])")
+# "Okafor, T 67F" opening a census or handover row: surname, initial, then age and sex.
+_ROW_LAST_INITIAL = re.compile(
+    rf"^[ \t]*(?P<last>{WORD}),[ \t]?[A-Z]\.?(?=[ \t]+\d{{1,3}}[ \t]?(?:[MF]|y/?o|yo)\b)", re.MULTILINE
+)
 
 
 def _initials_ok(ini: str, t: Triggers) -> bool:
@@ -339,6 +347,11 @@ def reference_hits(text: str, t: Triggers) -> Iterator[Hit]:
         if _initials_ok(m.group("b"), t) and not is_english_word(m.group("b")):
             yield m.start("b"), m.end("b"), 0.7, "signature"
     for m in _DASH_INITIALS.finditer(text):
+        bullet = re.fullmatch(r"[ \t]*", text[text.rfind("\n", 0, m.start()) + 1 : m.start()]) and re.match(
+            r"-[ \t]", text[m.start() :]
+        )
+        if bullet and re.match(r"[ \t]+[a-z]", text[m.end() :]):
+            continue  # "- HBPC RN home visit ...": a bulleted plan item, not a signed entry
         if m.group("cred").lower() in t.credentials and _initials_ok(m.group("ini"), t):
             yield m.start("ini"), m.end("ini"), 0.7, "signature"
     for m in _INITIALS_FIELD.finditer(text):
@@ -349,6 +362,11 @@ def reference_hits(text: str, t: Triggers) -> Iterator[Hit]:
         listed = _plain(stem) or is_last_name(stem) and not is_english_word(stem)
         if listed and not is_english_word(stem + "s") and stem.lower() not in t.stop_words:
             yield m.start("stem"), m.end(), 0.7, "relation"
+    for m in _ROW_LAST_INITIAL.finditer(text):
+        last = m.group("last")
+        shaped = last.istitle() or last.isupper() and len(last) > 3
+        if shaped and _initials_ok(last, t) and (_plain(last) or not is_english_word(last)):
+            yield m.start("last"), m.end(), 0.7, "last_first"
     for m in _HYPHEN_LAST_INITIAL.finditer(text):
         parts = m.group("last").split("-")
         shaped = all(p.istitle() for p in parts) and any(_plain(p) or not is_english_word(p) for p in parts)

@@ -27,6 +27,7 @@ from deid.detectors.name_lists import (
     is_english_word,
     is_first_name,
     is_inflected_word,
+    is_language,
     is_last_name,
     name_frequency,
 )
@@ -247,6 +248,8 @@ def accept_word(tok: str, mode: str, strength: str, after_first: bool, t: Trigge
     low = tok.lower()
     if len(tok) < 2 or low in t.cue_words or not name_shaped(tok):
         return False
+    if strength != "title" and not after_first and is_language(tok):
+        return False  # "Interpreter: Diné", "with Kreyòl interpreter": a language or people opens no name
     census = is_first_name(tok) or is_last_name(tok)
     if low in t.stop_words:
         titled = mode == "mixed" and tok[0].isupper() and not tok.isupper()
@@ -454,4 +457,6 @@ def name_before(text: str, end: int, mode: str, t: Triggers, strength: str = "st
         else:
             break
         start = pos = m.start()
+    if is_language(text[start:end].strip(" \t")):
+        return end  # "Interpreter: Navajo - grandson ...": one language word is no name
     return start if plain or census >= 2 else end

@@ -34,6 +34,8 @@ RECALL = [
     ("scribe T. Arkwright\n", ["T. Arkwright"]),
     ("Surgeon Nwachukwu-Hale; anesthesia", ["Nwachukwu-Hale"]),
     ("neurosurg (Varga) rec repeat CT", ["Varga"]),
+    # A census or handover row: surname, initial, age and sex (common practice on ward lists).
+    ("Handover 03/02\nOkonkwo-Bell, T 71F  bed 4\nNdiaye, A 64 M   306-B\n", ["Okonkwo-Bell, T", "Ndiaye, A"]),
 ]
 
 
@@ -52,6 +54,10 @@ PRECISION = [
     "Fellow to the team, Consultant CT Surgeon",  # imaging before a role word
     "Nurse reply 20:10 (EST): call us",  # a time zone after a clock time
     "Pain 7/10 - ok",
+    "Labs: Hgb 9.8 (POC), K 4.1",  # a decimal value and its method, not a dated signer
+    "- HBPC RN home visit in 3 days\n- CM call",  # a bulleted plan item, not "-TRH, RN"
+    "SpO2 91% RA, BG 210 at triage",  # abbreviations after a measurement, not "Last, First"
+    "Follow-up:\nRA, DM 57F stable",  # an abbreviation list, not a row name (RA is no surname here)
 ]
 
 

@@ -107,6 +107,9 @@ RECALL = [
     # Initials after a role or a by-phrase, including "Mc" initials.
     ("Stable on tacrolimus, seen by WQT", ["WQT"]),
     ("Handover given to physio AMcL.", ["AMcL"]),
+    # A language word does not stop a name it belongs to (common practice: English, French are surnames).
+    ("Seen by Dr. Welsh today", ["Welsh"]),
+    ("Contact: Paul Welsh (son)", ["Paul Welsh"]),
 ]
 
 
@@ -169,6 +172,11 @@ PRECISION = [
     "checked by RN at 0600",
     "we have frank concerns; you have mild pain",
     "his sons car broke down",
+    # Languages and peoples are no names (ISO 639 language names; common practice for interpreter lines).
+    "Interpreter: Somali - nephew interpreted by phone",
+    "Interview with pt and wife with Kreyol interpreter (phone)",
+    "Teaching given in Navajo through son; Speaks Hmong only.",
+    "To: Student Services, Ridgeway High School",
 ]
 
 
