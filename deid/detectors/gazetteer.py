@@ -278,6 +278,7 @@ class GazetteerRecognizer(EntityRecognizer):
         found.extend(world_places.districts(text, _ordinary))
         found.extend(world_places.region_postcodes(text, pl.region_codes))
         found.extend(_state_after_place(pl, text))
+        found.extend(_state_cued(pl, text))
         wanted = set(entities or self.ENTITIES)
         return [
             RecognizerResult(label, s, e, score, recognition_metadata={
@@ -468,6 +469,9 @@ def _zip_places(pl: Places, text: str) -> list[tuple[int, int, str, float]]:
 
 
 _COUNTY = re.compile(r"((?:[A-Z][a-z]+(?:['\u2019][a-z]+)? ){1,3})(County|Parish|Borough|Co\.)(?!\w)")
+#: The same in capitals ("ELM COUNTY CORONER"): only the word right before counts, and it must be
+#: no ordinary English word ("BY COUNTY").
+_COUNTY_CAPS = re.compile(r"(?<![\w'-])([A-Z]{3,}(?:['\u2019][A-Z]+)?) (COUNTY|PARISH|BOROUGH)(?![\w-])")
 
 
 def _counties(pl: Places, text: str) -> list[tuple[int, int, str, float]]:
@@ -484,6 +488,9 @@ def _counties(pl: Places, text: str) -> list[tuple[int, int, str, float]]:
         if best is None:
             best = (m.start(1) + words[-1].start(), 0.5)
         out.append((best[0], m.end(2), "COUNTY", best[1]))
+    for m in _COUNTY_CAPS.finditer(text):
+        if m.group(1).title() in pl.counties or not _ordinary(m.group(1)):
+            out.append((m.start(1), m.end(2), "COUNTY", SCORES["weak_cue"]))
     return out
 
 
@@ -491,6 +498,24 @@ def _counties(pl: Places, text: str) -> list[tuple[int, int, str, float]]:
 #: "Head, CT"; "LA" left atrium); after an unlisted place they need a ZIP code.
 _UNSAFE_AFTER_PLACE = _CLASHING_CODES | {"MA", "CT", "CO", "LA", "SC", "DE", "AL", "VA", "NE", "OK", "HI", "ID", "PR", "GA", "MO", "AS", "MT", "NV"}
 _PLACE_STATE = re.compile(r"(?<![\w'-])([A-Z][a-z]+(?:[ -][A-Z][a-z]+){0,2}), ?([A-Z]{2})(?=[ \t]*(?:$|\n|[.;)|]))")
+
+
+#: A state code that travel or licensing phrasing shows to be one (common practice in US notes):
+#: "fly in from TX", "TX license", "licensed in TX", "License PA MD-12345" (a number follows).
+_STATE_TRAVEL = re.compile(r"\b(?:from|to|licensed in|moved to|visiting)[ \t]+([A-Z]{2})(?![\w-])")
+_STATE_BEFORE_LICENSE = re.compile(r"(?<![\w-])([A-Z]{2})[ \t]+(?:medical[ \t]+|nursing[ \t]+)?(?i:licen[cs]e)\b")
+_STATE_IN_LICENSE = re.compile(r"\b(?i:licen[cs]e)(?:[ \t]*(?:#|no\.?|number))?[: \t]+([A-Z]{2})[ \t]+[A-Z]{0,3}-?\d")
+
+
+def _state_cued(pl: Places, text: str) -> list[tuple[int, int, str, float]]:
+    """State codes after a travel or licensing cue; codes that are also words or titles need a number."""
+    out = []
+    for pattern, strict in ((_STATE_TRAVEL, True), (_STATE_BEFORE_LICENSE, True), (_STATE_IN_LICENSE, False)):
+        for m in pattern.finditer(text):
+            code = m.group(1)
+            if code in pl.state_codes and not (strict and code in _UNSAFE_AFTER_PLACE):
+                out.append((m.start(1), m.end(1), "STATE", SCORES["weak_cue"]))
+    return out
 
 
 def _state_after_place(pl: Places, text: str) -> list[tuple[int, int, str, float]]:

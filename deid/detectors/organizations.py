@@ -239,14 +239,73 @@ def find_organizations(text: str, doc: object = None, lists: OrgLists | None = N
         final = m.group(1).split()[-1].lower()
         if final not in english_words() and not lists.is_generic(final):
             out.append((m.start(), m.end(), "FACILITY", SCORES["suffix"], "head_first"))
+    out.extend(_head_first_orgs(text, lists))
     out.extend(_cued(text, doc, lists, out))
+    out = [_extended(text, found, lists) for found in out]
     out.extend(_acronyms(text, out))
     return out
+
+
+#: A legal form after a comma ("Acme Freight, Inc."): part of the name (common practice in US company names).
+_LEGAL_AFTER = re.compile(r",[ \t]*(?:Inc\.?|LLC|L\.L\.C\.|Ltd\.?|LLP|PLC|Corp\.?|Co\.)(?![\w])")
+#: A site or branch joined by a spaced dash ("Elm Rehab - Westfield", "Elm Children's - North Clinic"):
+#: one to four capitalised words on the same line.
+_DASH_AFTER = re.compile(r"[ \t]+[-\u2013\u2014][ \t]+((?:[A-Z][\w'\u2019&.-]*[ \t]){0,3}[A-Z][\w'\u2019-]*)")
+_DASH_BEFORE = re.compile(r"((?:[A-Z][\w'\u2019&.-]*[ \t]){0,3}[A-Z][\w'\u2019-]*)[ \t]+[-\u2013\u2014][ \t]+$")
+#: A union local ("Bakery Workers Local 12"): common practice in US labour-union naming.
+_UNION_LOCAL = re.compile(r"\b((?:[A-Z][\w'\u2019&-]*[ \t]+){1,5}Local[ \t]+\d{1,4})\b")
+#: A body named head first ("University of Elmshire", "Diocese of Elmshire").
+_ORG_HEAD_FIRST = re.compile(
+    r"\b(?:University|College|Academy|Diocese|Archdiocese|Bank)[ \t]+of[ \t]+(?:the[ \t]+)?((?:[A-Z][\w'\u2019-]*[ \t]+){0,2}[A-Z][\w'\u2019-]*)"
+)
+
+
+def _named(words: str, lists: OrgLists) -> bool:
+    """True when some word is neither generic nor clinical (it names one body)."""
+    return any(not lists.is_generic(w.lower().strip(".,'\u2019")) for w in words.split() if w not in ("&", "-"))
+
+
+def _proper(words: str, lists: OrgLists) -> bool:
+    """True when some word is in no English word list and not generic ("Elmfield"; not "START OF CARE")."""
+    english = english_words()
+    return any(
+        (low := w.lower().strip(".,'\u2019")) not in english and not lists.is_generic(low)
+        and low.removesuffix("'s").removesuffix("\u2019s") not in english
+        for w in words.split() if w not in ("&", "-")
+    )
+
+
+def _head_first_orgs(text: str, lists: OrgLists) -> list[tuple[int, int, str, float, str]]:
+    out = [(m.start(), m.end(), "ORGANIZATION", SCORES["suffix"], "head_first") for m in _ORG_HEAD_FIRST.finditer(text)
+           if _named(m.group(1), lists)]
+    out += [(m.start(1), m.end(1), "ORGANIZATION", SCORES["suffix"], "union_local") for m in _UNION_LOCAL.finditer(text)
+            if _named(m.group(1).rsplit("Local", 1)[0], lists)]
+    return out
+
+
+def _extended(text: str, found: tuple[int, int, str, float, str], lists: OrgLists) -> tuple[int, int, str, float, str]:
+    """Grow a found name by a legal form after a comma and by a site joined with a spaced dash."""
+    s, e, label, score, rule = found
+    legal = _LEGAL_AFTER.match(text, e)
+    if legal is not None:
+        e = legal.end()
+    after = _DASH_AFTER.match(text, e)
+    if after is not None and _proper(after.group(1), lists):
+        e = after.end(1)
+    window = max(0, s - 60)
+    before = _DASH_BEFORE.search(text[window:s])
+    if before is not None and _proper(before.group(1), lists):
+        s = window + before.start(1)
+    return s, e, label, score, rule
 
 
 @lru_cache(maxsize=1)
 def _cue_patterns() -> tuple[re.Pattern[str], ...]:
     return tuple(re.compile(c, re.IGNORECASE) for c in _lines("org_cues.txt"))
+
+
+#: Letters naming parts of a plan ("Part B", "A/B"): they name no body.
+_PART_LETTERS = re.compile(r"[a-z](?:/[a-z])*")
 
 
 def _cued(text: str, doc: object, lists: OrgLists, found: list[tuple[int, int, str, float, str]]) -> list[tuple[int, int, str, float, str]]:
@@ -271,8 +330,8 @@ def _cued(text: str, doc: object, lists: OrgLists, found: list[tuple[int, int, s
         while len(words) > 1 and words[-1].group().lower() in _JOINERS:
             words = words[:-1]
         low = [m.group().lower().rstrip(",.") for m in words]
-        if not any(not lists.is_generic(w) for w in low) or low[0] in _TITLES:
-            continue
+        if not any(not lists.is_generic(w) and not _PART_LETTERS.fullmatch(w) for w in low) or low[0] in _TITLES:
+            continue  # generic words and part letters only ("Medicare Part B", "Medicare A/B")
         label = next((lab for k in (3, 2, 1) for suf, lab in lists.suffixes.items() if len(suf) == k and tuple(low[-k:]) == suf), "ORGANIZATION")
         last = words[-1]
         out.append((words[0].start(), last.start() + len(last.group().rstrip(".,")), label, SCORES["cue"], "cue"))

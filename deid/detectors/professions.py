@@ -33,6 +33,7 @@ from presidio_analyzer import EntityRecognizer, RecognizerResult
 from presidio_analyzer.nlp_engine import NlpArtifacts
 
 from deid.detectors.organizations import english_words, org_lists
+from deid.detectors.world_places import load_languages
 from deid.resources import data_file
 
 NAME = "professions.v1"
@@ -57,6 +58,8 @@ _WORD = re.compile(r"[A-Za-z0-9][A-Za-z0-9'\u2019]*(?:-[A-Za-z]+)*")
 #: Words a field value may contain that otherwise end a phrase ("Director of Nursing").
 _LABEL_JOINERS = frozenset({"of", "and"})
 MAX_WORDS = 5
+#: What joins two occupations of one person ("farmer and bus driver", "welder / fitter").
+_JOINED = re.compile(r"[ \t]+(?:and|&|/)[ \t]+(?:an?[ \t]+)?")
 
 
 def _lines(name: str) -> list[str]:
@@ -183,7 +186,8 @@ def _phrase_after(lists: OccupationLists, text: str, pos: int, kind: str, caps: 
         word, low = m.group(), m.group().lower()
         if low in lists.stop and not (any_words and words and low in _LABEL_JOINERS):
             break
-        cased = word.islower() or (not words and word[1:].islower()) or (caps and word.isupper())
+        # a language names the subject taught or translated ("Latin teacher"), never ends a phrase
+        cased = word.islower() or (not words and word[1:].islower()) or (caps and word.isupper()) or low in load_languages()
         abbreviation = bool(_ABBREVIATION.fullmatch(word)) and kind in _OPEN_KINDS
         if not any_words and not cased and not (word.isupper() and low in lists.phrases) and not abbreviation:
             break
@@ -205,7 +209,11 @@ def _phrase_after(lists: OccupationLists, text: str, pos: int, kind: str, caps: 
     for n in range(len(words), 0, -1):
         if text[words[n - 1][0] : words[n - 1][1]].isupper() and not caps and lowered[n - 1] not in lists.phrases:
             continue  # an abbreviation modifies a job ("ICU nurse"), never ends one
+        if n == 1 and lowered[0] in lists.nonjob and lowered[0] not in lists.phrases:
+            continue  # "(mother)": a relation, though "stay-at-home mother" makes it a head word
         agent = kind in _OPEN_KINDS and lists.agent_noun(lowered[n - 1])
+        # "-ologist"/"-iatrist" always name a profession; unlisted ones count after any cue but a signature
+        agent = agent or (kind != "signature" and lowered[n - 1].endswith(_STAFF_ENDINGS) and len(lowered[n - 1]) > 7)
         if agent or lists.ends_occupation(lowered[:n], weak_ok=kind == "work"):
             if kind == "signature" and lists.is_staff(lowered[:n]):
                 return None  # "Ann Roe, nurse practitioner": the care team, not an occupation
@@ -241,6 +249,13 @@ def find_professions(text: str, lists: OccupationLists | None = None) -> list[tu
                 span = _phrase_after(lists, text, m.end(), kind, caps)
                 if span is not None:
                     add(span, kind)
+    for (_, e), (_, kind) in list(found.items()):
+        # a second occupation joined to a found one ("farmer and school bus driver"), same cue
+        joined = _JOINED.match(text, e)
+        if joined is not None:
+            span = _phrase_after(lists, text, joined.end(), "before" if kind == "label" else kind)
+            if span is not None:
+                add(span, kind)
     for m in _WORD.finditer(text):
         if m.group().lower() in lists.heads and any(c.match(text[m.end() :]) for c in lists.after_cues):
             add((m.start(), m.end()), "after")

@@ -113,6 +113,14 @@ def _strip_possessive(text: str, s: int, e: int) -> int:
 _HEADER_WORDS = frozenset({"visit", "admission", "h&p", "note", "notes", "summary", "consult", "consultation", "report", "progress", "discharge", "handoff"})
 
 
+#: Endings of drug names from the USAN stem list (American Medical Association, USAN Council;
+#: from memory) and "-vax" of vaccine brands: a word ending so names a drug, not a person or place.
+_DRUG_STEMS = (
+    "azine", "mab", "nib", "pril", "olol", "statin", "vir", "cillin", "mycin", "azole", "oxacin", "sartan",
+    "dipine", "prazole", "tidine", "gliptin", "gliflozin", "glutide", "parin", "semide", "thiazide", "vax",
+)
+
+
 def _keep(piece: str, person: bool) -> bool:
     """Reject pieces that are abbreviations, lower-case words, stop-listed terms or languages.
 
@@ -123,9 +131,13 @@ def _keep(piece: str, person: bool) -> bool:
         return False
     if piece.strip(".,'\u2019").lower() in load_languages():
         return False
+    if len(piece.split()) == 2 and any(w.strip(".,'\u2019").lower() in load_languages() for w in piece.split()):
+        return False  # "Speaks Hmong", "Hmong Interpreter": a language and a word
     if piece.isupper() and len(piece.split()) > 1 and any(w.lower() in _HEADER_WORDS for w in piece.split()):
         return False
     words = piece.split()
+    if len(words) == 1 and len(piece) > 7 and piece.lower().endswith(_DRUG_STEMS):
+        return False  # "Sulfasalazine", "Varivax": a drug or vaccine named by its stem
     limit = 4 if person else 5
     if len(words) == 1 and piece.isupper() and len(piece) <= limit:
         return False
@@ -168,7 +180,7 @@ def _trim_other(text: str, s: int, e: int) -> tuple[int, int] | None:
 
 
 _CAMEL = re.compile(r"^[A-Za-z]*[a-z][A-Z][A-Za-z]*$")
-_HYPHEN_CODE = re.compile(r"^(?=[^-]*-)(?=.*(?:^|-)[A-Z]{2,4}(?:-|$))[A-Za-z]{1,4}(?:-[A-Za-z0-9]{1,4})+$")
+_HYPHEN_CODE = re.compile(r"^(?=[^-]*-)(?=.*(?:^|-)[A-Z]{2,4}(?:-|$))[A-Za-z]{1,6}(?:-[A-Za-z0-9]{1,4})+$")
 _SENTENCE_START = re.compile(r"(?:^|\n|[.!?]\s|--\s)[\s\-*\u2022>]*$")
 #: Parts of speech (spaCy's universal tags) that a one-word name never has.
 _NOT_NAME_POS = frozenset({"VERB", "AUX", "ADJ", "ADV", "ADP", "PRON", "DET", "NUM", "SCONJ", "CCONJ", "INTJ"})
@@ -258,6 +270,12 @@ def trim_person(text: str, s: int, e: int) -> tuple[int, int] | None:
     return (toks[0][0], toks[-1][1]) if toks else None
 
 
+def _clinical_words() -> frozenset[str]:
+    from deid.detectors.organizations import org_lists
+
+    return org_lists().clinical
+
+
 def _unlikely_person(text: str, s: int, e: int) -> bool:
     """True for a PERSON piece that nothing shows to be a name.
 
@@ -289,6 +307,8 @@ def _unlikely_person(text: str, s: int, e: int) -> bool:
             return True
         return not named(word) and word.lower() in english
     full = [w for w in words if len(w) > 1]
+    if full and len(full) < len(words) and all(w.lower() in _clinical_words() for w in full):
+        return True  # "L. Kidney", "R. Knee": a side letter and a body or clinical word
     if full and not text[s:e].isupper() and all(w.lower() in english and not named(w) for w in full):
         return True  # "L. Reflexes", "Abbreviated Mental": initials and ordinary words only
     last = words[-1]
@@ -302,6 +322,20 @@ def _unlikely_person(text: str, s: int, e: int) -> bool:
     if text[s:e].isupper():
         return all(w.lower() in english for w in words) and not all(named(w) for w in words)
     return False
+
+
+#: A model year before a word and a model code after it ("2019 Ford F-150", "2008 Honda CR-V"):
+#: the word is a vehicle make, not a person or an organisation of the patient (common practice).
+_YEAR_BEFORE = re.compile(r"\b(?:19|20)\d\d[ \t]+$")
+_MODEL_AFTER = re.compile(r"[ \t]+[A-Z0-9][A-Za-z0-9]*(?:-[A-Za-z0-9]+)?\b")
+
+
+def _vehicle_make(text: str, s: int, e: int) -> bool:
+    """True for one word between a model year and a model name: a car make."""
+    return (
+        len(text[s:e].split()) == 1 and _YEAR_BEFORE.search(text[max(0, s - 8) : s]) is not None
+        and _MODEL_AFTER.match(text, e) is not None
+    )
 
 
 def map_label(spacy_label: str, piece: str) -> str | None:
@@ -355,7 +389,7 @@ class SpacyEntityRecognizer(EntityRecognizer):
                     trimmed = _trim_other(text, *trimmed)
                 if trimmed is None or not _keep(text[trimmed[0] : trimmed[1]], person):
                     continue
-                if _DOSE_AFTER.match(text, trimmed[1]):
+                if _DOSE_AFTER.match(text, trimmed[1]) or _vehicle_make(text, *trimmed):
                     continue
                 piece = text[trimmed[0] : trimmed[1]]
                 label = map_label(ent.label_, piece)

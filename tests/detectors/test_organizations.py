@@ -125,3 +125,28 @@ ROUND3 = [
 @pytest.mark.parametrize(("text", "expected"), ROUND3, ids=[c[0][:30] for c in ROUND3])
 def test_round_three(text: str, expected: set[tuple[str, str]]) -> None:
     assert found(text) == expected
+
+
+# Round 5: invented names; the naming conventions are common practice in US business, payer,
+# union and clinic names.
+ROUND5 = [
+    ("Employer: Brackenfold Freight, Inc. - Human Resources", {("Brackenfold Freight, Inc.", "ORGANIZATION")}),
+    ("Enrolled at the University of Quellmoor this fall.", {("University of Quellmoor", "ORGANIZATION")}),
+    ("Union: Bakery Workers Local 12, member since 2001", {("Bakery Workers Local 12", "ORGANIZATION")}),
+    ("Authorisation requested from Prairie Larkspur Medicaid today.", {("Prairie Larkspur Medicaid", "ORGANIZATION")}),
+    ("Sister attends Mossbank Head Start (Elm St).", {("Mossbank Head Start", "ORGANIZATION")}),
+    ("Eats at Dornwald's Smokehouse twice a week.", {("Dornwald's Smokehouse", "ORGANIZATION")}),
+    ("Coverage: QXRTS (state plan)", {("QXRTS", "ORGANIZATION")}),
+    ("Coverage: Medicare Part B", set()),
+    ("Outpatient therapy at KLM Rehab - Fernholt next week", {("KLM Rehab - Fernholt", "FACILITY")}),
+    ("Referred to Silver Aspen Foot & Ankle for orthotics", {("Silver Aspen Foot & Ankle", "FACILITY")}),
+    ("Seen at Brindlewood Children's - Northside Clinic", {("Brindlewood Children's - Northside Clinic", "FACILITY")}),
+    ("Follow up in Inpatient Rehab - Acute care team", set()),
+    # a form title in capitals names no facility
+    ("CERTIFICATION OF HEALTH CARE PROVIDER", set()),
+]
+
+
+@pytest.mark.parametrize(("text", "expected"), ROUND5, ids=[c[0][:30] for c in ROUND5])
+def test_round_five_cases(text: str, expected: set[tuple[str, str]]) -> None:
+    assert found(text) == expected

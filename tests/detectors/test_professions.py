@@ -133,3 +133,36 @@ def test_round4_cues(text: str, expected: list[str]) -> None:
     from deid.detectors.professions import find_professions
 
     assert [text[s:e] for s, e, _, _ in find_professions(text)] == expected
+
+
+# Round 5: synthetic sentences; "common practice" in US social-history phrasing unless noted.
+ROUND5 = [
+    # a field label with a bracketed qualifier
+    ("Occupation (former): hardware store owner (closed 2010)", {"hardware store owner"}),
+    # a tool and die maker is an occupation of the US Standard Occupational Classification (SOC 51-4111)
+    ("Retired tool-and-die maker, 30 years at a local shop.", {"tool-and-die maker"}),
+    # two occupations joined by "and" after one cue
+    ("Social: Rancher and school bus driver for the district.", {"Rancher", "school bus driver"}),
+    # a field of study after a degree programme
+    ("24M, PhD candidate in marine geology at a state school.", {"marine geology"}),
+    # an aside in brackets, then the occupation in apposition; "-ologist" always names a profession
+    ("Ann Roe (health care proxy), a dermatologist in town, was called.", {"dermatologist"}),
+    # a language is the subject taught, not the end of the phrase
+    ("later 22 years as a high-school Spanish teacher", {"high-school Spanish teacher"}),
+    # a military branch, then the trade held in it
+    ("Service: Korea, Navy, radio operator; later farmed.", {"radio operator"}),
+    # staff credentials after a signer's name are the care team, not an occupation
+    ("John Roe, LPN, charge nurse", set()),
+    # an age cue does not cross a line break into a staff field
+    ("49F\nSpanish interpreter: video", set()),
+    # a relation in brackets is no job, though "stay-at-home mother" is listed
+    ("Guardian: Ann Roe (mother), 555-0100", set()),
+    # a hyphenated compound and a stop word after a label are not occupations
+    ("making a bed (job-specific, own choice)", set()),
+    ("unable to work in any occupation - through at least March", set()),
+]
+
+
+@pytest.mark.parametrize(("text", "expected"), ROUND5, ids=[c[0][:30] for c in ROUND5])
+def test_round_five_cases(text: str, expected: set[str]) -> None:
+    assert found(text) == expected

@@ -200,3 +200,28 @@ def test_round_three(text: str, ents: list[tuple[str, str]], expected: set[tuple
 )
 def test_round4_precision_rules(text: str, ents: list[tuple[str, str]], expected: set[tuple[str, str]]) -> None:
     assert run(text, ents) == expected
+
+
+@pytest.mark.parametrize(
+    ("text", "ents", "expected"),
+    [
+        # Autonyms and interpreter languages beyond ISO 639-1 (listed by hand, from memory).
+        ("Speaks Diné at home.", [("Diné", "PERSON")], set()),
+        ("Interpreter: Hmong, by phone.", [("Hmong", "GPE")], set()),
+        ("Speaks Hmong at home.", [("Speaks Hmong", "PERSON")], set()),
+        # Drug and device makers are no patient identifier (well-known names, from memory).
+        ("Lot from Pfizer, 0.5 mL IM.", [("Pfizer", "ORG")], set()),
+        # A board-certification credential after a name (common practice in US signatures).
+        ("Ann Roe, PMHNP-BC", [("PMHNP-BC", "ORG")], set()),
+        # A make between a model year and a model (common practice in vehicle descriptions).
+        ("Vehicle: 2019 Chevrolet S-10, red", [("Chevrolet", "ORG")], set()),
+        # A side letter and a clinical word ("L. Kidney") are no person.
+        ("UOP 1.8 L. Kidney biopsy deferred.", [("L. Kidney", "PERSON")], set()),
+        # A drug named by its USAN stem ("-azine", "-mab"; AMA USAN stem list, from memory).
+        ("Started Mesalazine last week.", [("Mesalazine", "PERSON")], set()),
+        # A real name is still found.
+        ("Seen with Adaeze Okafor today.", [("Adaeze Okafor", "PERSON")], {("Adaeze Okafor", "NAME")}),
+    ],
+)
+def test_round5_precision_rules(text: str, ents: list[tuple[str, str]], expected: set[tuple[str, str]]) -> None:
+    assert run(text, ents) == expected
