@@ -8,12 +8,13 @@ overlap resolution and precedence live in :mod:`deid.detectors.resolve`.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Iterable, Sequence
 from typing import TYPE_CHECKING, Protocol
 
 from deid.model import Note, Span
 
 if TYPE_CHECKING:
+    from presidio_analyzer import EntityRecognizer, RecognizerResult
     from presidio_analyzer.nlp_engine import NlpArtifacts
 
 
@@ -61,3 +62,27 @@ def source_name(recognizer: str, detail: str | None = None) -> str:
 def detector_of(source: str) -> str:
     """The registered detector name inside a ``Span.source`` (text before any slash)."""
     return source.split("/", 1)[0]
+
+
+def presidio_results(
+    recognizer: EntityRecognizer,
+    hits: Iterable[tuple[str, int, int, float, str | None]],
+    entities: Iterable[str] | None = None,
+) -> list[RecognizerResult]:
+    """Turn ``(label, start, end, score, rule)`` hits into Presidio results carrying our source name.
+
+    Every recognizer of ours reports through this one function, so each
+    result's ``recognizer_name`` is ``source_name(recognizer.name, rule)``
+    (what becomes ``Span.source``). ``entities`` restricts the labels.
+    """
+    from presidio_analyzer import RecognizerResult
+
+    wanted = set(entities or ())
+    return [
+        RecognizerResult(label, start, end, score, recognition_metadata={
+            RecognizerResult.RECOGNIZER_NAME_KEY: source_name(recognizer.name, rule),  # type: ignore[has-type]
+            RecognizerResult.RECOGNIZER_IDENTIFIER_KEY: recognizer.id,
+        })
+        for label, start, end, score, rule in hits
+        if not wanted or label in wanted
+    ]

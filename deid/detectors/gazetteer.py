@@ -37,6 +37,7 @@ from presidio_analyzer import EntityRecognizer, RecognizerResult
 from presidio_analyzer.nlp_engine import NlpArtifacts
 
 from deid.detectors import world_places
+from deid.detectors.base import presidio_results
 from deid.resources import data_file
 
 NAME = "gazetteer.v1"
@@ -279,15 +280,7 @@ class GazetteerRecognizer(EntityRecognizer):
         found.extend(world_places.region_postcodes(text, pl.region_codes))
         found.extend(_state_after_place(pl, text))
         found.extend(_state_cued(pl, text))
-        wanted = set(entities or self.ENTITIES)
-        return [
-            RecognizerResult(label, s, e, score, recognition_metadata={
-                RecognizerResult.RECOGNIZER_NAME_KEY: NAME,
-                RecognizerResult.RECOGNIZER_IDENTIFIER_KEY: self.id,
-            })
-            for s, e, label, score in found
-            if label in wanted
-        ]
+        return presidio_results(self, ((label, s, e, score, None) for s, e, label, score in found), entities)
 
     @staticmethod
     def _match_at(pl: Places, text: str, words: list[re.Match[str]], i: int) -> list[Place]:

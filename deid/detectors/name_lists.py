@@ -25,6 +25,7 @@ from typing import Any
 
 from presidio_analyzer import EntityRecognizer, RecognizerResult
 
+from deid.detectors.base import presidio_results
 from deid.errors import ConfigError
 from deid.resources import data_file
 
@@ -478,19 +479,8 @@ class NameListRecognizer(EntityRecognizer):
         """Return NAME results; ``nlp_artifacts`` is not needed."""
         if entities and "NAME" not in entities:
             return []
-        return [
-            RecognizerResult(
-                "NAME",
-                hit[0],
-                hit[1],
-                hit[2],
-                recognition_metadata={
-                    RecognizerResult.RECOGNIZER_NAME_KEY: f"{RECOGNIZER}/{hit[3]}",
-                    RecognizerResult.RECOGNIZER_IDENTIFIER_KEY: self.id,
-                },
-            )
-            for hit in find_list_names(text)
-        ]
+        hits = (("NAME", s, e, score, rule) for s, e, score, rule in find_list_names(text))
+        return presidio_results(self, hits, entities)
 
 
 if __name__ == "__main__":  # pragma: no cover - regenerates the shipped word lists

@@ -23,6 +23,7 @@ from typing import Any
 
 from presidio_analyzer import EntityRecognizer, RecognizerResult
 
+from deid.detectors.base import presidio_results
 from deid.detectors.name_lists import (
     is_common_word,
     is_english_word,
@@ -318,16 +319,5 @@ class NameTriggerRecognizer(EntityRecognizer):
         """Return NAME results; the spaCy analysis is not needed."""
         if entities and "NAME" not in entities:
             return []
-        return [
-            RecognizerResult(
-                "NAME",
-                s,
-                e,
-                score,
-                recognition_metadata={
-                    RecognizerResult.RECOGNIZER_NAME_KEY: f"{RECOGNIZER}/{rule}",
-                    RecognizerResult.RECOGNIZER_IDENTIFIER_KEY: self.id,
-                },
-            )
-            for s, e, score, rule in find_names(text, self._triggers)
-        ]
+        hits = (("NAME", s, e, score, rule) for s, e, score, rule in find_names(text, self._triggers))
+        return presidio_results(self, hits, entities)

@@ -31,6 +31,7 @@ from functools import lru_cache
 from presidio_analyzer import EntityRecognizer, RecognizerResult
 from presidio_analyzer.nlp_engine import NlpArtifacts
 
+from deid.detectors.base import presidio_results
 from deid.resources import data_file
 
 NAME = "organizations.v1"
@@ -368,12 +369,5 @@ class OrganizationRecognizer(EntityRecognizer):
     ) -> list[RecognizerResult]:
         """Every suffix-ended name in ``text`` (``entities`` restricts the labels)."""
         doc = nlp_artifacts.tokens if nlp_artifacts is not None else None
-        wanted = set(entities or self.ENTITIES)
-        return [
-            RecognizerResult(label, s, e, score, recognition_metadata={
-                RecognizerResult.RECOGNIZER_NAME_KEY: f"{NAME}/{rule}",
-                RecognizerResult.RECOGNIZER_IDENTIFIER_KEY: self.id,
-            })
-            for s, e, label, score, rule in find_organizations(text, doc)
-            if label in wanted
-        ]
+        hits = ((label, s, e, score, rule) for s, e, label, score, rule in find_organizations(text, doc))
+        return presidio_results(self, hits, entities)

@@ -32,6 +32,7 @@ from functools import lru_cache
 from presidio_analyzer import EntityRecognizer, RecognizerResult
 from presidio_analyzer.nlp_engine import NlpArtifacts
 
+from deid.detectors.base import presidio_results
 from deid.detectors.organizations import english_words, org_lists
 from deid.detectors.world_places import load_languages
 from deid.resources import data_file
@@ -281,12 +282,5 @@ class ProfessionRecognizer(EntityRecognizer):
         self, text: str, entities: list[str], nlp_artifacts: NlpArtifacts | None = None
     ) -> list[RecognizerResult]:
         """Every cued occupation in ``text``."""
-        if entities and "PROFESSION" not in entities:
-            return []
-        return [
-            RecognizerResult("PROFESSION", s, e, score, recognition_metadata={
-                RecognizerResult.RECOGNIZER_NAME_KEY: f"{NAME}/{rule}",
-                RecognizerResult.RECOGNIZER_IDENTIFIER_KEY: self.id,
-            })
-            for s, e, score, rule in find_professions(text)
-        ]
+        hits = (("PROFESSION", s, e, score, rule) for s, e, score, rule in find_professions(text))
+        return presidio_results(self, hits, entities)
