@@ -242,11 +242,16 @@ def last_first_hits(text: str, t: Triggers) -> Iterator[Hit]:
             continue  # "Hi Billie, Dr. Ashworth ...": a title is no first name
         if last.isupper() and len(last) <= 3 and re.search(r"\d%?[ \t]*$", text[: m.start()]):
             continue  # "SpO2 93% RA, BG 162": abbreviations after a measurement
+        if last.isupper() and first.isupper() and (last in abbreviations() or first in abbreviations()):
+            continue  # "No LOF, VB or contractions": clinical abbreviations in a list
         if not is_first_name(first):
             # A first name newer than the 1990 lists ("QUIMBY, MAKAYLA"): a listed,
-            # non-everyday surname and a non-English word, both capitalised alike.
+            # non-everyday surname and a non-English word, both capitalised alike,
+            # and a first name that is a word at all (a vowel, three letters or more).
             if (
-                not is_common_word(last)
+                len(first) >= 3
+                and re.search(r"[AEIOUYaeiouy]", first) is not None
+                and not is_common_word(last)
                 and not is_english_word(first)
                 and (last.isupper() and first.isupper() or last.istitle() and first.istitle())
             ):

@@ -105,3 +105,20 @@ def test_specialty_in_brackets_is_not_a_name(text: str) -> None:
 
     inner = text[text.index("(") + 1 : text.index(")")]
     assert all(text[a:b] != inner for a, b, *_ in find_names(text))
+
+
+@pytest.mark.parametrize(
+    ("text", "found"),
+    [
+        # Clinical abbreviations in a comma list are not "SURNAME, GIVEN" (common practice in OB notes:
+        # LOF = leakage of fluid, VB = vaginal bleeding).
+        ("S: Feels well. No LOF, VB or contractions.", False),
+        ("Patient: QUIMBY, HAROLD seen today.", True),
+        ("Patient: QUIMBY, MAKAYLA seen today.", True),
+    ],
+)
+def test_last_first_refuses_abbreviation_lists(text: str, found: bool) -> None:
+    from deid.detectors.name_shapes import last_first_hits
+    from deid.detectors.name_triggers import default_triggers
+
+    assert bool(list(last_first_hits(text, default_triggers()))) is found
