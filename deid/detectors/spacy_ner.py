@@ -61,7 +61,7 @@ _LEADING_PERSON = frozenset(
 _CREDENTIAL = re.compile(r"^(?:[A-Z]{2,5}|M\.?D\.?|Ph\.?D\.?|[A-Z]{2,4}-[A-Z]{1,2})[,.]?$")
 
 
-@lru_cache(maxsize=1)
+@lru_cache(maxsize=8)  # several files: a size of one would re-read them in turn
 def _word_set(name: str) -> frozenset[str]:
     lines = data_file(name).read_text(encoding="utf-8").splitlines()
     return frozenset(ln.strip().lower() for ln in lines if ln.strip() and not ln.startswith("#"))

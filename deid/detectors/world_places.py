@@ -22,6 +22,7 @@ from __future__ import annotations
 import re
 import unicodedata
 from dataclasses import dataclass
+from functools import lru_cache
 
 from deid.resources import data_file
 
@@ -78,8 +79,9 @@ def load_world_cities() -> list[tuple[str, str]]:
     return [(ln.partition("\t")[0], ln.partition("\t")[2]) for ln in _lines(CITIES_FILE)]
 
 
+@lru_cache(maxsize=1)
 def load_languages() -> frozenset[str]:
-    """Lower-cased ISO 639-1 language names."""
+    """Lower-cased ISO 639-1 language names (read once per process: it is asked on every candidate)."""
     return frozenset(ln.strip().lower() for ln in _lines(LANGUAGES_FILE))
 
 
