@@ -28,7 +28,7 @@ import csv
 import json
 import re
 import tomllib
-from collections.abc import Mapping
+from collections.abc import Iterator, Mapping
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -137,14 +137,7 @@ def load_gold_jsonl(path: str | Path, label_map: Mapping[str, str] | None = None
     path = Path(path)
     notes: list[GoldNote] = []
     seen: set[str] = set()
-    for number, line in _lines(path):
-        where = f"{path}:{number}"
-        try:
-            record = json.loads(line)
-        except json.JSONDecodeError as exc:
-            raise InputError(f"{where}: not valid JSON ({exc.msg})") from None
-        if not isinstance(record, dict):
-            raise InputError(f"{where}: expected a JSON object")
+    for where, record in _records(path):
         note = _note_from(record, where)
         if note.note_id in seen:
             raise InputError(f"{where}: note_id {note.note_id!r} appears twice")
@@ -175,6 +168,19 @@ def _lines(path: Path) -> list[tuple[int, str]]:
         raise InputError(f"{path}: cannot read ({exc.strerror})") from exc
     except UnicodeDecodeError:
         raise InputError(f"{path}: not UTF-8 text") from None
+
+
+def _records(path: Path) -> Iterator[tuple[str, dict[str, Any]]]:
+    """Each non-blank line of a JSONL file as ``("FILE:LINE", object)``; anything else is an InputError."""
+    for number, line in _lines(path):
+        where = f"{path}:{number}"
+        try:
+            record = json.loads(line)
+        except json.JSONDecodeError as exc:
+            raise InputError(f"{where}: not valid JSON ({exc.msg})") from None
+        if not isinstance(record, dict):
+            raise InputError(f"{where}: expected a JSON object")
+        yield where, record
 
 
 def _note_from(record: dict[str, Any], where: str) -> Note:
@@ -246,14 +252,7 @@ def load_predictions(path: str | Path) -> dict[str, list[Span]]:
     """
     path = Path(path)
     found: dict[str, list[Span]] = {}
-    for number, line in _lines(path):
-        where = f"{path}:{number}"
-        try:
-            record = json.loads(line)
-        except json.JSONDecodeError as exc:
-            raise InputError(f"{where}: not valid JSON ({exc.msg})") from None
-        if not isinstance(record, dict):
-            raise InputError(f"{where}: expected a JSON object")
+    for where, record in _records(path):
         note_id, detector, score = record.get("note_id"), record.get("detector"), record.get("score", 1.0)
         if not isinstance(note_id, str) or not note_id:
             raise InputError(f"{where}: 'note_id' must be a non-empty string")
