@@ -88,6 +88,8 @@ def _vetoed(note: Note, span: Span, parts: Sequence[Span], suppressors: Sequence
         return False
     if any(s.suppresses(note, span) for s in suppressors):
         return True
+    if len(parts) == 1:
+        return False  # the one candidate is the merged span, already asked
     return all(any(s.suppresses(note, p) for s in suppressors) for p in parts)
 
 
