@@ -356,7 +356,9 @@ def map_label(spacy_label: str, piece: str) -> str | None:
             return "STATE"
         return kind if kind in ("STATE", "COUNTRY") else "CITY"
     if spacy_label == "ORG":
-        return "ORGANIZATION"
+        # The small model often calls a state or country an organisation ("Kentucky 41903").
+        kind = places().classify(piece)
+        return kind if kind in ("STATE", "COUNTRY") else "ORGANIZATION"
     if spacy_label == "FAC":
         return "FACILITY"
     return None

@@ -225,3 +225,8 @@ def test_round4_precision_rules(text: str, ents: list[tuple[str, str]], expected
 )
 def test_round5_precision_rules(text: str, ents: list[tuple[str, str]], expected: set[tuple[str, str]]) -> None:
     assert run(text, ents) == expected
+
+
+def test_a_state_the_model_calls_an_organisation_is_a_state() -> None:
+    # US state names from the `us` package; keeping STATE lets the default policy keep it (Safe Harbor allows states).
+    assert run("Halverton, Kentucky 41903", [("Kentucky", "ORG")]) == {("Kentucky", "STATE")}
